@@ -1,0 +1,231 @@
+// Command api serves the thermal-movement calculation service.
+//
+// Every setting is a flag, else an environment variable, else a built-in
+// default; `api --help` lists them.
+package main
+
+import (
+	"context"
+	"errors"
+	"flag"
+	"fmt"
+	"io"
+	"net"
+	"net/http"
+	"os"
+	"os/signal"
+	"strconv"
+	"syscall"
+	"time"
+
+	"github.com/prometheus/client_golang/prometheus"
+	"github.com/prometheus/client_golang/prometheus/collectors"
+	"github.com/prometheus/client_golang/prometheus/promhttp"
+	"go.uber.org/zap"
+	"go.uber.org/zap/zapcore"
+
+	"github.com/thermalmovement/service/internal/handlers"
+	"github.com/thermalmovement/service/internal/materials"
+)
+
+// Set at build time: -ldflags "-X main.version=1.2.3 -X main.commit=abc".
+var (
+	version = "dev"
+	commit  = "unknown"
+)
+
+func main() {
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	defer stop()
+	if err := run(ctx, os.Args[1:], os.Getenv, os.Stdout); err != nil {
+		if errors.Is(err, flag.ErrHelp) {
+			os.Exit(0)
+		}
+		fmt.Fprintln(os.Stderr, "api:", err)
+		os.Exit(1)
+	}
+}
+
+// config is every setting of the process.
+type config struct {
+	addr            string
+	metricsAddr     string
+	shutdownDelay   time.Duration
+	shutdownTimeout time.Duration
+	readHeader      time.Duration
+	read            time.Duration
+	write           time.Duration
+	idle            time.Duration
+	maxHeaderBytes  int
+	maxBodyBytes    int64
+	logLevel        string
+}
+
+// parseConfig reads flags, falling back to environment variables, then
+// to defaults. The environment variable of --flag-name is FLAG_NAME.
+func parseConfig(args []string, getenv func(string) string, out io.Writer) (config, error) {
+	var c config
+	fs := flag.NewFlagSet("api", flag.ContinueOnError)
+	fs.SetOutput(out)
+	var errs []error
+	str := func(p *string, name, def, usage string) {
+		if v := getenv(envName(name)); v != "" {
+			def = v
+		}
+		fs.StringVar(p, name, def, usage+" (env "+envName(name)+")")
+	}
+	dur := func(p *time.Duration, name string, def time.Duration, usage string) {
+		if v := getenv(envName(name)); v != "" {
+			d, err := time.ParseDuration(v)
+			if err != nil {
+				errs = append(errs, fmt.Errorf("%s=%q: %w", envName(name), v, err))
+			}
+			def = d
+		}
+		fs.DurationVar(p, name, def, usage+" (env "+envName(name)+")")
+	}
+	integer := func(p *int64, name string, def int64, usage string) {
+		if v := getenv(envName(name)); v != "" {
+			n, err := strconv.ParseInt(v, 10, 64)
+			if err != nil {
+				errs = append(errs, fmt.Errorf("%s=%q: %w", envName(name), v, err))
+			}
+			def = n
+		}
+		fs.Int64Var(p, name, def, usage+" (env "+envName(name)+")")
+	}
+	var maxHeader int64
+	str(&c.addr, "addr", ":8080", "listen address of the API")
+	str(&c.metricsAddr, "metrics-addr", "", "separate listen address for /metrics; empty serves /metrics on --addr")
+	dur(&c.shutdownDelay, "shutdown-delay", 0, "on SIGTERM, keep serving this long with /readyz at 503 before shutting down")
+	dur(&c.shutdownTimeout, "shutdown-timeout", 15*time.Second, "longest wait for in-flight requests at shutdown")
+	dur(&c.readHeader, "read-header-timeout", 5*time.Second, "http.Server ReadHeaderTimeout")
+	dur(&c.read, "read-timeout", 30*time.Second, "http.Server ReadTimeout")
+	dur(&c.write, "write-timeout", 60*time.Second, "http.Server WriteTimeout")
+	dur(&c.idle, "idle-timeout", 120*time.Second, "http.Server IdleTimeout")
+	integer(&maxHeader, "max-header-bytes", 16<<10, "largest request header block, bytes")
+	integer(&c.maxBodyBytes, "max-body-bytes", 64<<10, "largest JSON body of a calculation, bytes")
+	str(&c.logLevel, "log-level", "info", "debug, info, warn or error")
+	if err := fs.Parse(args); err != nil {
+		return c, err
+	}
+	if len(errs) > 0 {
+		return c, errors.Join(errs...)
+	}
+	if fs.NArg() > 0 {
+		return c, fmt.Errorf("unexpected arguments %q", fs.Args())
+	}
+	c.maxHeaderBytes = int(maxHeader)
+	switch {
+	case c.shutdownDelay < 0 || c.shutdownTimeout <= 0:
+		return c, errors.New("--shutdown-delay must not be negative and --shutdown-timeout must be positive")
+	case c.readHeader <= 0 || c.read <= 0 || c.write <= 0 || c.idle <= 0:
+		return c, errors.New("every timeout must be positive")
+	case c.maxHeaderBytes < 1024 || c.maxBodyBytes < 1024:
+		return c, errors.New("--max-header-bytes and --max-body-bytes must be at least 1024")
+	}
+	if _, err := zapcore.ParseLevel(c.logLevel); err != nil {
+		return c, fmt.Errorf("--log-level: %w", err)
+	}
+	return c, nil
+}
+
+func envName(flagName string) string {
+	b := []byte(flagName)
+	for i, ch := range b {
+		switch {
+		case ch == '-':
+			b[i] = '_'
+		case 'a' <= ch && ch <= 'z':
+			b[i] = ch - 'a' + 'A'
+		}
+	}
+	return string(b)
+}
+
+// run starts the service and blocks until ctx is done and the service has
+// drained.
+func run(ctx context.Context, args []string, getenv func(string) string, stdout io.Writer) error {
+	cfg, err := parseConfig(args, getenv, stdout)
+	if err != nil {
+		return err
+	}
+	level, _ := zapcore.ParseLevel(cfg.logLevel)
+	zc := zap.NewProductionConfig()
+	zc.Level = zap.NewAtomicLevelAt(level)
+	zc.Sampling = nil
+	enc := zapcore.NewJSONEncoder(zc.EncoderConfig)
+	log := zap.New(zapcore.NewCore(enc, zapcore.Lock(zapcore.AddSync(stdout)), level))
+	defer func() { _ = log.Sync() }()
+
+	cat, err := materials.Load()
+	if err != nil {
+		return err
+	}
+	reg := prometheus.NewRegistry()
+	reg.MustRegister(collectors.NewGoCollector(), collectors.NewProcessCollector(collectors.ProcessCollectorOpts{}))
+	metricsHandler := promhttp.HandlerFor(reg, promhttp.HandlerOpts{Registry: reg})
+	opts := handlers.Options{Version: version, Commit: commit, MaxBodyBytes: cfg.maxBodyBytes}
+	if cfg.metricsAddr == "" {
+		opts.Metrics = metricsHandler
+	}
+	h, err := handlers.New(log, reg, cat, opts)
+	if err != nil {
+		return err
+	}
+
+	ln, err := net.Listen("tcp", cfg.addr)
+	if err != nil {
+		return err
+	}
+	srv := &http.Server{
+		Handler:           h.Router(),
+		ReadHeaderTimeout: cfg.readHeader,
+		ReadTimeout:       cfg.read,
+		WriteTimeout:      cfg.write,
+		IdleTimeout:       cfg.idle,
+		MaxHeaderBytes:    cfg.maxHeaderBytes,
+		ErrorLog:          zap.NewStdLog(log.Named("http")),
+	}
+	servers := []*http.Server{srv}
+	listeners := []net.Listener{ln}
+	if cfg.metricsAddr != "" {
+		mln, err := net.Listen("tcp", cfg.metricsAddr)
+		if err != nil {
+			ln.Close()
+			return err
+		}
+		mux := http.NewServeMux()
+		mux.Handle("GET /metrics", metricsHandler)
+		servers = append(servers, &http.Server{Handler: mux, ReadHeaderTimeout: cfg.readHeader})
+		listeners = append(listeners, mln)
+	}
+	errc := make(chan error, len(servers))
+	for i, s := range servers {
+		go func() { errc <- s.Serve(listeners[i]) }()
+	}
+	log.Info("serving", zap.String("addr", ln.Addr().String()), zap.String("version", version),
+		zap.String("materials", cat.Version), zap.String("metrics_addr", cfg.metricsAddr))
+
+	select {
+	case err := <-errc:
+		return err
+	case <-ctx.Done():
+	}
+	// Draining: readiness fails at once, requests are still served for
+	// the delay (so that the endpoints controller removes the pod), then
+	// the servers stop taking connections and in-flight requests finish.
+	h.Drain()
+	log.Info("draining", zap.Duration("shutdown_delay", cfg.shutdownDelay))
+	time.Sleep(cfg.shutdownDelay)
+	sctx, cancel := context.WithTimeout(context.Background(), cfg.shutdownTimeout)
+	defer cancel()
+	var errs []error
+	for _, s := range servers {
+		if err := s.Shutdown(sctx); err != nil {
+			errs = append(errs, err)
+		}
+	}
+	log.Info("stopped")
+	return errors.Join(errs...)
+}

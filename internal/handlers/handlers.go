@@ -1,0 +1,239 @@
+// Package handlers is the HTTP adapter of the service: it turns requests
+// into calls of package calc and the results back into responses, on gin.
+// Every response and every error is written by the one wrapper in this
+// file; handlers decode, validate, call one calculation and return.
+package handlers
+
+import (
+	"encoding/json"
+	"net/http"
+	"reflect"
+	"sync/atomic"
+
+	"github.com/gin-gonic/gin"
+	"github.com/prometheus/client_golang/prometheus"
+	"go.uber.org/zap"
+
+	"github.com/thermalmovement/service/internal/materials"
+)
+
+// Options configure the handlers.
+type Options struct {
+	Version      string       // service version reported in every response
+	Commit       string       // source revision, for the build-info metric
+	MaxBodyBytes int64        // cap of a calculation's JSON body
+	Metrics      http.Handler // serves /metrics when set (nil when metrics listen elsewhere)
+}
+
+// Handler holds what every request needs. Build it with New.
+type Handler struct {
+	log     *zap.Logger
+	cat     *materials.Catalogue
+	opts    Options
+	metrics *metrics
+	ready   atomic.Bool
+}
+
+// New returns the handlers, registering their metrics on reg.
+func New(log *zap.Logger, reg prometheus.Registerer, cat *materials.Catalogue, opts Options) (*Handler, error) {
+	if opts.MaxBodyBytes <= 0 {
+		opts.MaxBodyBytes = 64 << 10
+	}
+	m, err := newMetrics(reg, opts, cat.Version)
+	if err != nil {
+		return nil, err
+	}
+	h := &Handler{log: log, cat: cat, opts: opts, metrics: m}
+	h.ready.Store(true)
+	return h, nil
+}
+
+// Drain marks the service as draining: /readyz answers 503 from now on,
+// while requests are still served.
+func (h *Handler) Drain() { h.ready.Store(false) }
+
+// route is one registered path.
+type route struct {
+	method, path string
+	handler      gin.HandlerFunc
+}
+
+// Router returns the gin engine with every route and the middleware.
+func (h *Handler) Router() *gin.Engine {
+	gin.SetMode(gin.ReleaseMode)
+	r := gin.New()
+	r.HandleMethodNotAllowed = true
+	r.RedirectTrailingSlash = false
+	r.RedirectFixedPath = false
+	r.Use(h.requestID, h.observe, h.recover)
+	for _, rt := range h.routes() {
+		r.Handle(rt.method, rt.path, rt.handler)
+	}
+	r.NoRoute(func(c *gin.Context) {
+		h.problem(c, nil, newError(errNotFound, "no route "+c.Request.Method+" "+safePath(c.Request.URL.Path)+"; GET /openapi.yaml lists the routes"))
+	})
+	r.NoMethod(func(c *gin.Context) {
+		c.Header("Allow", allowed(c.Request.URL.Path))
+		h.problem(c, nil, newError(errMethod, "method "+c.Request.Method+" is not allowed here"))
+	})
+	return r
+}
+
+// Routes lists every registered method and path template, for tests that
+// compare them with the OpenAPI file.
+func (h *Handler) Routes() [][2]string {
+	var out [][2]string
+	for _, rt := range h.routes() {
+		out = append(out, [2]string{rt.method, rt.path})
+	}
+	return out
+}
+
+func (h *Handler) routes() []route {
+	rs := []route{
+		{http.MethodGet, "/healthz", h.healthz},
+		{http.MethodGet, "/readyz", h.readyz},
+		{http.MethodGet, "/openapi.yaml", h.openapi},
+		{http.MethodGet, "/docs", h.docsRedirect},
+		{http.MethodGet, "/docs/*any", h.docs},
+		{http.MethodGet, "/problems/:type", h.problemType},
+		{http.MethodGet, "/v1/materials", h.listMaterials},
+		{http.MethodGet, "/v1/materials/:id", h.getMaterial},
+		{http.MethodGet, "/v1/units", h.listUnits},
+	}
+	if h.opts.Metrics != nil {
+		rs = append(rs, route{http.MethodGet, "/metrics", gin.WrapH(h.opts.Metrics)})
+	}
+	for _, c := range h.calculations() {
+		hf := h.calculation(c)
+		rs = append(rs, route{http.MethodGet, "/v1/" + c.name, hf}, route{http.MethodPost, "/v1/" + c.name, hf})
+	}
+	return rs
+}
+
+// calcSpec describes one calculation endpoint.
+type calcSpec struct {
+	name    string // path below /v1/, and the "calculation" of the response
+	results any    // a nil pointer to the results struct
+	fn      func(p *params) (*Response, error)
+	formats []string // formats beyond json, text, csv, xml
+}
+
+// calculations lists every calculation endpoint; each feature adds its own.
+func (h *Handler) calculations() []calcSpec {
+	var cs []calcSpec
+	cs = append(cs, h.expansionCalcs()...)
+	cs = append(cs, h.differentialCalcs()...)
+	cs = append(cs, h.jointCalcs()...)
+	return cs
+}
+
+// calculation is the wrapper around every calculation: it reads the
+// parameters, calls the calculation, converts results to their output
+// units and writes the response in the format asked for.
+func (h *Handler) calculation(spec calcSpec) gin.HandlerFunc {
+	fields := fieldsOf(reflect.TypeOf(spec.results))
+	return func(c *gin.Context) {
+		vals := make(map[string]raw, 8)
+		if errs := readQuery(c.Request.URL.Query(), vals); len(errs) > 0 {
+			h.problem(c, nil, newError(errInvalid, "invalid query string", errs...))
+			return
+		}
+		if c.Request.Method == http.MethodPost {
+			body := make(map[string]raw, 8)
+			if err := readJSON(c.Request, h.opts.MaxBodyBytes, body); err != nil {
+				eb := err.(*errBody)
+				h.problem(c, nil, newError(eb.kind, eb.msg))
+				return
+			}
+			for k, v := range body {
+				if _, dup := vals[k]; dup {
+					h.problem(c, nil, newError(errInvalid, "parameter "+k+" given in both the query and the body", FieldError{Parameter: k, Detail: "given in both the query and the body"}))
+					return
+				}
+				vals[k] = v
+			}
+		}
+		p := newParams(vals, h.cat)
+		out := readOutput(p, fields, spec.formats...)
+		resp, err := spec.fn(p)
+		if err != nil {
+			h.metrics.calcError(spec.name, err)
+			h.problem(c, out, err)
+			return
+		}
+		items, ok := out.convert(resp.Results)
+		if !ok {
+			err := newError(errUnprocessable, "the inputs lead to a result that is not a finite number; check them for extreme values")
+			h.metrics.calcError(spec.name, err)
+			h.problem(c, out, err)
+			return
+		}
+		h.complete(resp, spec.name, p)
+		h.write(c, out, resp, items)
+	}
+}
+
+// complete fills the parts of a response every calculation shares.
+func (h *Handler) complete(resp *Response, name string, p *params) {
+	resp.Calculation = name
+	resp.Inputs = p.inputs
+	resp.Versions = Versions{Service: h.opts.Version, Materials: h.cat.Version}
+	resp.Cautions = append(standingCautions[:len(standingCautions):len(standingCautions)], resp.Cautions...)
+	if resp.References == nil {
+		resp.References = []string{}
+	}
+	if resp.Warnings == nil {
+		resp.Warnings = []string{}
+	}
+}
+
+// standingCautions go with every calculation.
+var standingCautions = []string{
+	"Preliminary engineering calculation: check it before relying on it.",
+	"Design temperatures, coefficients and capacities must come from the governing local codes and the project's specifications.",
+	"A licensed engineer checks the design before anything is built.",
+}
+
+func (h *Handler) write(c *gin.Context, out *outputOptions, resp *Response, items []resultItem) {
+	var body []byte
+	switch out.format {
+	case "text":
+		body = textBody(items, out.result)
+		if body == nil {
+			h.problem(c, out, newError(errUnprocessable, "result "+out.result+" is not computed for these inputs",
+				FieldError{Parameter: "result", Detail: "not computed for these inputs"}))
+			return
+		}
+	case "csv":
+		body = csvBody(items)
+	case "xml":
+		body = xmlBody(resp.Calculation, items, resp.Warnings)
+	default:
+		var err error
+		if body, err = json.Marshal(resp); err != nil {
+			h.problem(c, out, err)
+			return
+		}
+	}
+	c.Data(http.StatusOK, contentTypes[out.format], body)
+}
+
+// problem writes err as RFC 9457 problem+json, or, where the caller asked
+// on_error=inline for a text, csv or xml answer, as a 200 "#ERROR:" line
+// that a spreadsheet cell can show.
+func (h *Handler) problem(c *gin.Context, out *outputOptions, err error) {
+	pr := problemOf(err, safePath(c.Request.URL.Path))
+	pr.RequestID = c.Writer.Header().Get(requestIDHeader)
+	c.Set(problemKey, pr.Type)
+	if pr.Status == http.StatusInternalServerError {
+		h.log.Error("unexpected error", zap.Error(err), zap.String("request_id", pr.RequestID))
+	}
+	if out != nil && out.inline && out.format != "json" {
+		c.Data(http.StatusOK, contentTypes["text"], []byte("#ERROR: "+pr.Detail))
+		return
+	}
+	body, _ := json.Marshal(pr)
+	c.Data(pr.Status, "application/problem+json", body)
+	c.Abort()
+}

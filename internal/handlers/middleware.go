@@ -1,0 +1,191 @@
+package handlers
+
+import (
+	"crypto/rand"
+	"encoding/hex"
+	"errors"
+	"net/http"
+	"runtime/debug"
+	"strconv"
+	"strings"
+	"sync/atomic"
+	"time"
+
+	"github.com/gin-gonic/gin"
+	"github.com/prometheus/client_golang/prometheus"
+	"go.uber.org/zap"
+	"go.uber.org/zap/zapcore"
+)
+
+const (
+	requestIDHeader = "X-Request-ID"
+	problemKey      = "problem"
+)
+
+// idPrefix and idCounter make request ids: unique per process start and
+// cheap to make.
+var idCounter atomic.Uint64
+
+func newIDPrefix() string {
+	var b [6]byte
+	if _, err := rand.Read(b[:]); err != nil {
+		return "000000000000"
+	}
+	return hex.EncodeToString(b[:])
+}
+
+// requestID takes the caller's X-Request-ID when it is a short token, or
+// makes one, and echoes it in the response.
+func (h *Handler) requestID(c *gin.Context) {
+	id := c.GetHeader(requestIDHeader)
+	if !validRequestID(id) {
+		id = h.metrics.idPrefix + "-" + strconv.FormatUint(idCounter.Add(1), 36)
+	}
+	c.Header(requestIDHeader, id)
+	c.Next()
+}
+
+func validRequestID(id string) bool {
+	if id == "" || len(id) > 128 {
+		return false
+	}
+	for i := 0; i < len(id); i++ {
+		c := id[i]
+		if !(c >= 'a' && c <= 'z' || c >= 'A' && c <= 'Z' || c >= '0' && c <= '9' || c == '-' || c == '_' || c == '.' || c == ':') {
+			return false
+		}
+	}
+	return true
+}
+
+// observe logs one line per request and counts it in the metrics, by
+// route template, never by raw path or query.
+func (h *Handler) observe(c *gin.Context) {
+	start := time.Now()
+	c.Next()
+	elapsed := time.Since(start)
+	route := c.FullPath()
+	if route == "" {
+		route = "unmatched"
+	}
+	status := c.Writer.Status()
+	h.metrics.observe(c.Request.Method, route, status, elapsed)
+	if ce := h.log.Check(levelFor(status), "request"); ce != nil {
+		fields := []zap.Field{
+			zap.String("method", c.Request.Method),
+			zap.String("route", route),
+			zap.Int("status", status),
+			zap.Duration("duration", elapsed),
+			zap.Int("bytes", c.Writer.Size()),
+			zap.String("request_id", c.Writer.Header().Get(requestIDHeader)),
+		}
+		if t, ok := c.Get(problemKey); ok {
+			fields = append(fields, zap.String("problem", t.(string)))
+		}
+		ce.Write(fields...)
+	}
+}
+
+func levelFor(status int) zapcore.Level {
+	if status >= 500 {
+		return zapcore.ErrorLevel
+	}
+	return zapcore.InfoLevel
+}
+
+// recover answers a panic in a handler with a 500 problem and logs it
+// with its stack; http.ErrAbortHandler keeps its meaning.
+func (h *Handler) recover(c *gin.Context) {
+	defer func() {
+		v := recover()
+		if v == nil {
+			return
+		}
+		if err, ok := v.(error); ok && errors.Is(err, http.ErrAbortHandler) {
+			panic(v)
+		}
+		h.log.Error("panic in handler", zap.Any("panic", v), zap.ByteString("stack", debug.Stack()),
+			zap.String("route", c.FullPath()), zap.String("request_id", c.Writer.Header().Get(requestIDHeader)))
+		if !c.Writer.Written() {
+			h.problem(c, nil, errors.New("panic"))
+		}
+		c.Abort()
+	}()
+	c.Next()
+}
+
+// metrics are the service's Prometheus collectors.
+type metrics struct {
+	requests *prometheus.CounterVec
+	duration *prometheus.HistogramVec
+	calcErrs *prometheus.CounterVec
+	idPrefix string
+}
+
+func newMetrics(reg prometheus.Registerer, opts Options, materialsVersion string) (*metrics, error) {
+	m := &metrics{
+		requests: prometheus.NewCounterVec(prometheus.CounterOpts{
+			Name: "thermal_http_requests_total",
+			Help: "HTTP requests served, by method, route template and status code.",
+		}, []string{"method", "route", "code"}),
+		duration: prometheus.NewHistogramVec(prometheus.HistogramOpts{
+			Name:    "thermal_http_request_duration_seconds",
+			Help:    "Time to serve an HTTP request, by method, route template and status code.",
+			Buckets: []float64{0.0001, 0.00025, 0.0005, 0.001, 0.0025, 0.005, 0.01, 0.025, 0.05, 0.1, 0.25, 1},
+		}, []string{"method", "route", "code"}),
+		calcErrs: prometheus.NewCounterVec(prometheus.CounterOpts{
+			Name: "thermal_calculation_errors_total",
+			Help: "Calculation requests refused, by calculation and problem type.",
+		}, []string{"calculation", "kind"}),
+		idPrefix: newIDPrefix(),
+	}
+	build := prometheus.NewGaugeVec(prometheus.GaugeOpts{
+		Name: "thermal_build_info",
+		Help: "Build of the running service; the value is always 1.",
+	}, []string{"version", "commit", "materials"})
+	for _, c := range []prometheus.Collector{m.requests, m.duration, m.calcErrs, build} {
+		if err := reg.Register(c); err != nil {
+			return nil, err
+		}
+	}
+	build.WithLabelValues(opts.Version, opts.Commit, materialsVersion).Set(1)
+	return m, nil
+}
+
+func (m *metrics) observe(method, route string, status int, d time.Duration) {
+	code := strconv.Itoa(status)
+	m.requests.WithLabelValues(method, route, code).Inc()
+	m.duration.WithLabelValues(method, route, code).Observe(d.Seconds())
+}
+
+func (m *metrics) calcError(calculation string, err error) {
+	var ae *apiError
+	kind := "internal"
+	if errors.As(err, &ae) {
+		kind = kindInfo[ae.kind].slug
+	}
+	m.calcErrs.WithLabelValues(calculation, kind).Inc()
+}
+
+// safePath returns a request path fit to quote in a message: printable
+// ASCII, at most 200 bytes.
+func safePath(p string) string {
+	var b strings.Builder
+	for i := 0; i < len(p) && b.Len() < 200; i++ {
+		c := p[i]
+		if c < 0x20 || c >= 0x7f {
+			b.WriteString("%" + strings.ToUpper(hex.EncodeToString([]byte{c})))
+			continue
+		}
+		b.WriteByte(c)
+	}
+	return b.String()
+}
+
+// allowed returns the Allow header for a path.
+func allowed(path string) string {
+	if strings.HasPrefix(path, "/v1/") && !strings.HasPrefix(path, "/v1/materials") && path != "/v1/units" {
+		return "GET, POST"
+	}
+	return "GET"
+}

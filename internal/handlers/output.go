@@ -1,0 +1,211 @@
+package handlers
+
+import (
+	"bytes"
+	"encoding/xml"
+	"strconv"
+	"strings"
+
+	"github.com/thermalmovement/service/internal/units"
+)
+
+// outputOptions are the parameters that shape a response rather than the
+// calculation: format, unit system, per-result units, the result a text
+// answer carries and how errors are answered.
+type outputOptions struct {
+	format    string // json, text, csv, xml (svg, png where a calculation draws)
+	system    string // si or us
+	result    string // the result of a text answer; "" for the first
+	inline    bool   // on_error=inline: errors as a 200 "#ERROR: ..." body
+	overrides map[string]units.Unit
+}
+
+// control lists the parameters read by readOutput, for the unknown check.
+func isControl(name string) bool {
+	switch name {
+	case "format", "units", "result", "on_error":
+		return true
+	}
+	return strings.HasSuffix(name, "_unit")
+}
+
+// readOutput reads the output parameters; fields are the calculation's
+// results, formats the formats it offers beyond json, text, csv and xml.
+func readOutput(p *params, fields []resultField, formats ...string) *outputOptions {
+	o := &outputOptions{format: "json", system: "si"}
+	allowed := append([]string{"json", "text", "csv", "xml"}, formats...)
+	if f, ok := p.text("format"); ok {
+		o.format = f
+		if !contains(allowed, f) {
+			p.invalid("format", strconv.Quote(f)+" is not one of "+strings.Join(allowed, ", "))
+			o.format = "json"
+		}
+	}
+	if s, ok := p.text("units"); ok {
+		if s != "si" && s != "us" {
+			p.invalid("units", strconv.Quote(s)+" is not si or us")
+		} else {
+			o.system = s
+		}
+	}
+	if e, ok := p.text("on_error"); ok {
+		switch e {
+		case "inline":
+			o.inline = true
+		case "problem":
+		default:
+			p.invalid("on_error", strconv.Quote(e)+" is not inline or problem")
+		}
+	}
+	if r, ok := p.text("result"); ok {
+		if fieldByName(fields, r) == nil {
+			p.invalid("result", "no result "+strconv.Quote(r)+"; results: "+fieldNames(fields))
+		}
+		o.result = r
+	}
+	for name := range p.vals {
+		if !strings.HasSuffix(name, "_unit") {
+			continue
+		}
+		rname := strings.TrimSuffix(name, "_unit")
+		f := fieldByName(fields, rname)
+		if f == nil {
+			// Not a result: leave it for the calculation (or the unknown check).
+			continue
+		}
+		s, _ := p.text(name)
+		u, err := units.ParseUnit(s)
+		if err != nil {
+			p.invalid(name, err.Error())
+			continue
+		}
+		if !f.kind.Accepts(u) {
+			want := f.kind.Dim.String()
+			if f.kind.Absolute {
+				want = "temperature scale (degC, degF, K, degR)"
+			}
+			p.invalid(name, strconv.Quote(s)+" is not a unit of "+want+", which "+rname+" is")
+			continue
+		}
+		if o.overrides == nil {
+			o.overrides = map[string]units.Unit{}
+		}
+		o.overrides[rname] = u
+	}
+	return o
+}
+
+func (o *outputOptions) unitFor(f resultField) units.Unit {
+	if u, ok := o.overrides[f.name]; ok {
+		return u
+	}
+	if o.system == "us" {
+		return f.kind.US
+	}
+	return f.kind.SI
+}
+
+func fieldByName(fields []resultField, name string) *resultField {
+	for i := range fields {
+		if fields[i].name == name {
+			return &fields[i]
+		}
+	}
+	return nil
+}
+
+func fieldNames(fields []resultField) string {
+	names := make([]string, len(fields))
+	for i, f := range fields {
+		names[i] = f.name
+	}
+	return strings.Join(names, ", ")
+}
+
+func contains(list []string, s string) bool {
+	for _, x := range list {
+		if x == s {
+			return true
+		}
+	}
+	return false
+}
+
+// Content types of the formats.
+var contentTypes = map[string]string{
+	"json": "application/json; charset=utf-8",
+	"text": "text/plain; charset=utf-8",
+	"csv":  "text/csv; charset=utf-8",
+	"xml":  "application/xml; charset=utf-8",
+	"svg":  "image/svg+xml",
+	"png":  "image/png",
+}
+
+// textBody is the format=text answer: the one number asked for, bare.
+func textBody(items []resultItem, result string) []byte {
+	for _, it := range items {
+		if result == "" || it.name == result {
+			return units.AppendNumber(nil, it.value)
+		}
+	}
+	// The result asked for is not among those computed for these inputs.
+	return nil
+}
+
+// csvBody is the format=csv answer: a header row naming each result with
+// its unit, and one data row.
+func csvBody(items []resultItem) []byte {
+	var b bytes.Buffer
+	for i, it := range items {
+		if i > 0 {
+			b.WriteByte(',')
+		}
+		b.WriteString(csvHeader(it.name, it.unit))
+	}
+	b.WriteString("\r\n")
+	for i, it := range items {
+		if i > 0 {
+			b.WriteByte(',')
+		}
+		b.Write(units.AppendNumber(nil, it.value))
+	}
+	b.WriteString("\r\n")
+	return b.Bytes()
+}
+
+// csvHeader is "name [unit]", quoted when the unit holds a comma or quote.
+func csvHeader(name, unit string) string {
+	h := name
+	if unit != "" {
+		h += " [" + unit + "]"
+	}
+	if strings.ContainsAny(h, ",\"\r\n") {
+		h = `"` + strings.ReplaceAll(h, `"`, `""`) + `"`
+	}
+	return h
+}
+
+// xmlBody is the format=xml answer: flat, no namespaces, one element per
+// result holding the number, with its unit as an attribute, then the
+// warnings, so that FILTERXML(x, "//delta_length") reads a number.
+func xmlBody(calculation string, items []resultItem, warnings []string) []byte {
+	var b bytes.Buffer
+	b.WriteString(`<?xml version="1.0" encoding="UTF-8"?>` + "\n")
+	b.WriteString(`<result calculation="`)
+	xml.EscapeText(&b, []byte(calculation))
+	b.WriteString(`">`)
+	for _, it := range items {
+		b.WriteString("<" + it.name + ` unit="`)
+		xml.EscapeText(&b, []byte(it.unit))
+		b.WriteString(`">`)
+		b.Write(units.AppendNumber(nil, it.value))
+		b.WriteString("</" + it.name + ">")
+	}
+	for _, w := range warnings {
+		b.WriteString("<warning>")
+		xml.EscapeText(&b, []byte(w))
+		b.WriteString("</warning>")
+	}
+	b.WriteString("</result>\n")
+	return b.Bytes()
+}

@@ -1,0 +1,305 @@
+package handlers
+
+import (
+	"errors"
+	"math"
+	"sort"
+	"strconv"
+	"strings"
+
+	"github.com/thermalmovement/service/internal/materials"
+	"github.com/thermalmovement/service/internal/units"
+)
+
+// params reads the parameters of one calculation, whichever way they came
+// (query string, JSON body, CSV row), collecting every problem so that
+// the response names all bad fields at once.
+type params struct {
+	vals   map[string]raw
+	used   map[string]bool
+	errs   map[errKind][]FieldError
+	inputs Inputs
+	cat    *materials.Catalogue
+}
+
+func newParams(vals map[string]raw, cat *materials.Catalogue) *params {
+	return &params{vals: vals, used: make(map[string]bool, len(vals)), errs: map[errKind][]FieldError{}, cat: cat}
+}
+
+// fail records a problem with the named parameter.
+func (p *params) fail(k errKind, name, detail string) {
+	p.errs[k] = append(p.errs[k], FieldError{Parameter: name, Detail: detail})
+}
+
+// invalid records an unreadable parameter.
+func (p *params) invalid(name, detail string) { p.fail(errInvalid, name, detail) }
+
+// unprocessable records a parameter that was read but cannot be computed.
+func (p *params) unprocessable(name, detail string) { p.fail(errUnprocessable, name, detail) }
+
+// has reports whether the parameter was sent.
+func (p *params) has(name string) bool {
+	_, ok := p.vals[name]
+	return ok
+}
+
+// take returns a parameter and marks it read.
+func (p *params) take(name string) (raw, bool) {
+	r, ok := p.vals[name]
+	if ok {
+		p.used[name] = true
+	}
+	return r, ok
+}
+
+// ok reports whether no problem has been recorded so far.
+func (p *params) ok() bool {
+	for _, fs := range p.errs {
+		if len(fs) > 0 {
+			return false
+		}
+	}
+	return true
+}
+
+// done checks for parameters nobody read, then returns every problem
+// found as one error, or nil.
+func (p *params) done() error {
+	var unknown []string
+	for k := range p.vals {
+		if !p.used[k] {
+			unknown = append(unknown, k)
+		}
+	}
+	sort.Strings(unknown)
+	for _, k := range unknown {
+		p.used[k] = true
+		p.invalid(k, "unknown parameter")
+	}
+	return fieldsError(p.errs)
+}
+
+// quantity parses a parameter as a quantity with a unit.
+func (p *params) quantity(name string) (units.Quantity, bool) {
+	r, ok := p.take(name)
+	if !ok {
+		return units.Quantity{}, false
+	}
+	var q units.Quantity
+	var err error
+	switch r.kind {
+	case rawString:
+		q, err = units.Parse(r.str)
+	case rawObject:
+		q, err = units.New(r.num, r.unit)
+	case rawNumber:
+		q = units.Quantity{Value: r.num, Unit: units.Unit{Dim: units.Dimensionless, Factor: 1}}
+	default:
+		err = errors.New("expected a quantity such as \"30 m\", not " + r.origin)
+	}
+	if err != nil {
+		p.invalid(name, err.Error())
+		return units.Quantity{}, false
+	}
+	return q, true
+}
+
+// dim reads an optional quantity of dimension d and returns it in SI.
+func (p *params) dim(name string, d units.Dim) (float64, bool) {
+	q, ok := p.quantity(name)
+	if !ok {
+		return 0, false
+	}
+	v, err := q.In(d)
+	if err != nil {
+		p.invalid(name, dimMessage(err, q, d))
+		return 0, false
+	}
+	p.inputs.addQuantity(name, q)
+	return v, true
+}
+
+func dimMessage(err error, q units.Quantity, d units.Dim) string {
+	if errors.Is(err, units.ErrNoUnit) {
+		return "a bare number is not a " + d.String() + ": give its unit, such as " + strconv.Quote(d.Example())
+	}
+	return err.Error()
+}
+
+// positive reads an optional quantity that must be above zero.
+func (p *params) positive(name string, d units.Dim) (float64, bool) {
+	v, ok := p.dim(name, d)
+	if ok && !(v > 0) {
+		p.unprocessable(name, "must be greater than zero")
+		return 0, false
+	}
+	return v, ok
+}
+
+// nonNegative reads an optional quantity that must not be below zero.
+func (p *params) nonNegative(name string, d units.Dim) (float64, bool) {
+	v, ok := p.dim(name, d)
+	if ok && v < 0 {
+		p.unprocessable(name, "must not be negative")
+		return 0, false
+	}
+	return v, ok
+}
+
+// temperature reads an optional absolute temperature (fields t_*).
+func (p *params) temperature(name string) (units.Temperature, bool) {
+	q, ok := p.quantity(name)
+	if !ok {
+		return 0, false
+	}
+	t, err := q.Temperature()
+	if err != nil {
+		switch {
+		case errors.Is(err, units.ErrBelowZero):
+			p.unprocessable(name, err.Error())
+		case errors.Is(err, units.ErrNoUnit) || q.Unit.Symbol == "":
+			p.invalid(name, "a bare number is not a temperature: give its unit, such as \"20 degC\"")
+		default:
+			p.invalid(name, err.Error())
+		}
+		return 0, false
+	}
+	p.inputs.addQuantity(name, q)
+	return t, true
+}
+
+// difference reads an optional temperature difference (fields delta_t*).
+func (p *params) difference(name string) (units.TemperatureDifference, bool) {
+	q, ok := p.quantity(name)
+	if !ok {
+		return 0, false
+	}
+	d, err := q.TemperatureDifference()
+	if err != nil {
+		if q.Unit.Symbol == "" {
+			p.invalid(name, "a bare number is not a temperature difference: give its unit, such as \"35 K\"")
+		} else {
+			p.invalid(name, err.Error())
+		}
+		return 0, false
+	}
+	p.inputs.addQuantity(name, q)
+	return d, true
+}
+
+// number reads an optional dimensionless number: a JSON number, or a
+// string such as "0.5" or "25 %".
+func (p *params) number(name string) (float64, bool) {
+	q, ok := p.quantity(name)
+	if !ok {
+		return 0, false
+	}
+	v, err := q.In(units.Dimensionless)
+	if err != nil {
+		p.invalid(name, err.Error())
+		return 0, false
+	}
+	p.inputs.addNumber(name, v)
+	return v, true
+}
+
+// text reads an optional string parameter.
+func (p *params) text(name string) (string, bool) {
+	r, ok := p.take(name)
+	if !ok {
+		return "", false
+	}
+	if r.kind != rawString {
+		p.invalid(name, "expected a string, not "+r.origin)
+		return "", false
+	}
+	return r.str, true
+}
+
+// choice reads an optional string that must be one of allowed.
+func (p *params) choice(name string, allowed ...string) (string, bool) {
+	s, ok := p.text(name)
+	if !ok {
+		return "", false
+	}
+	for _, a := range allowed {
+		if s == a {
+			p.inputs.addText(name, s)
+			return s, true
+		}
+	}
+	p.invalid(name, strconv.Quote(s)+" is not one of "+strings.Join(allowed, ", "))
+	return "", false
+}
+
+// flag reads an optional boolean: JSON true/false, or "true"/"false".
+func (p *params) flag(name string) bool {
+	r, ok := p.take(name)
+	if !ok {
+		return false
+	}
+	switch {
+	case r.kind == rawBool:
+		p.inputs.addText(name, strconv.FormatBool(r.b))
+		return r.b
+	case r.kind == rawString && (r.str == "true" || r.str == "false"):
+		p.inputs.addText(name, r.str)
+		return r.str == "true"
+	}
+	p.invalid(name, "expected true or false, not "+strconv.Quote(r.origin))
+	return false
+}
+
+// material reads an optional catalogue id.
+func (p *params) material(name string) (*materials.Material, bool) {
+	id, ok := p.text(name)
+	if !ok {
+		return nil, false
+	}
+	m, err := p.cat.Get(id)
+	if err != nil {
+		p.fail(errNotFound, name, "unknown material "+strconv.QuoteToASCII(id)+"; GET /v1/materials lists the ids")
+		return nil, false
+	}
+	p.inputs.addText(name, id)
+	return m, true
+}
+
+// require records a missing parameter when none of names was sent.
+func (p *params) require(names ...string) bool {
+	for _, n := range names {
+		if p.has(n) {
+			return true
+		}
+	}
+	if len(names) == 1 {
+		p.invalid(names[0], "required")
+	} else {
+		p.invalid(names[0], "required: give "+strings.Join(names, " or "))
+	}
+	return false
+}
+
+// exclusive records a contradiction when more than one of names was sent.
+func (p *params) exclusive(names ...string) bool {
+	var given []string
+	for _, n := range names {
+		if p.has(n) {
+			given = append(given, n)
+		}
+	}
+	if len(given) > 1 {
+		p.unprocessable(given[1], "contradicts "+given[0]+": give only one of "+strings.Join(names, ", "))
+		return false
+	}
+	return true
+}
+
+func finite(vs ...float64) bool {
+	for _, v := range vs {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return false
+		}
+	}
+	return true
+}

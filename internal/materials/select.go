@@ -1,0 +1,146 @@
+package materials
+
+import (
+	"fmt"
+	"math"
+
+	"github.com/thermalmovement/service/internal/calc"
+	"github.com/thermalmovement/service/internal/units"
+)
+
+// Model chooses between a material's constant coefficient and its
+// temperature-dependent curves.
+type Model string
+
+// The models a request may ask for.
+const (
+	Auto     Model = "auto"     // constant within its range, else a curve that covers the interval
+	Constant Model = "constant" // the constant design coefficient, whatever the temperatures
+	CurveFit Model = "curve"    // a temperature-dependent curve
+)
+
+// Expansion is a linear strain over a temperature interval with the data
+// it came from.
+type Expansion struct {
+	Strain    float64 // linear strain of a length measured at the initial temperature
+	AlphaMean float64 // Strain / (t2 - t1); the constant coefficient when dT = 0
+	Kind      string  // "constant" or the curve kind
+	Source    Source
+	Warnings  []string
+}
+
+// OutOfRangeError reports temperatures beyond a material's data.
+type OutOfRangeError struct {
+	Material string
+	Detail   string
+}
+
+func (e *OutOfRangeError) Error() string { return e.Detail }
+
+// Unwrap lets callers test errors.Is(err, calc.ErrOutOfRange).
+func (e *OutOfRangeError) Unwrap() error { return calc.ErrOutOfRange }
+
+// Linear returns the linear strain of the solid m from t1 to t2 by the
+// model asked for:
+//   - the constant coefficient where both temperatures lie within its
+//     range (with a warning, not an error, outside it when no curve
+//     exists or the constant was asked for);
+//   - else the first curve whose range holds both temperatures;
+//   - else an *OutOfRangeError, unless extrapolate is set, when the curve
+//     that covers most of the interval is evaluated beyond its range, or
+//     the constant used, with a warning.
+func (m *Material) Linear(t1, t2 units.Temperature, model Model, extrapolate bool) (Expansion, error) {
+	if m.Alpha == nil {
+		return Expansion{}, fmt.Errorf("%s is a liquid: it has a volumetric coefficient, not a linear one", m.ID)
+	}
+	constantInRange := !m.Alpha.HasRange || (within(t1, m.Alpha.TMin, m.Alpha.TMax) && within(t2, m.Alpha.TMin, m.Alpha.TMax))
+	if model == Constant || (model == Auto && (constantInRange || len(m.Curves) == 0)) {
+		e := m.constant(t2.Sub(t1))
+		if !constantInRange {
+			e.Warnings = append(e.Warnings, fmt.Sprintf("the interval %s to %s lies outside %s, the range the constant coefficient of %s holds for; the movement is extrapolated",
+				celsius(t1), celsius(t2), span(m.Alpha.TMin, m.Alpha.TMax), m.ID))
+		}
+		return e, nil
+	}
+	for _, c := range m.Curves {
+		if calc.InRange(c, t1) && calc.InRange(c, t2) {
+			return m.curve(c, t1, t2), nil
+		}
+	}
+	if len(m.Curves) == 0 {
+		return Expansion{}, &OutOfRangeError{Material: m.ID, Detail: fmt.Sprintf("%s has no temperature-dependent curve; ask alpha_model=constant or auto", m.ID)}
+	}
+	ranges := ""
+	for i, c := range m.Curves {
+		lo, hi := c.Range()
+		if i > 0 {
+			ranges += ", "
+		}
+		ranges += span(lo, hi)
+	}
+	if !extrapolate {
+		return Expansion{}, &OutOfRangeError{Material: m.ID, Detail: fmt.Sprintf(
+			"the interval %s to %s is outside the temperature-dependent data of %s (%s); set extrapolate=true to extrapolate, or give alpha",
+			celsius(t1), celsius(t2), m.ID, ranges)}
+	}
+	best, cover := m.Curves[0], -1.0
+	for _, c := range m.Curves {
+		lo, hi := c.Range()
+		a, b := min(t1, t2), max(t1, t2)
+		if ov := float64(min(b, hi) - max(a, lo)); ov > cover {
+			best, cover = c, ov
+		}
+	}
+	e := m.curve(best, t1, t2)
+	lo, hi := best.Range()
+	e.Warnings = append(e.Warnings, fmt.Sprintf("extrapolated: the interval %s to %s reaches beyond %s, the range of the %s data of %s",
+		celsius(t1), celsius(t2), span(lo, hi), best.Kind, m.ID))
+	return e, nil
+}
+
+// LinearDelta returns the strain of the solid m over the temperature
+// difference dT by its constant coefficient; absolute temperatures are
+// unknown, so no range can be checked.
+func (m *Material) LinearDelta(dT units.TemperatureDifference) (Expansion, error) {
+	if m.Alpha == nil {
+		return Expansion{}, fmt.Errorf("%s is a liquid: it has a volumetric coefficient, not a linear one", m.ID)
+	}
+	return m.constant(dT), nil
+}
+
+func (m *Material) constant(dT units.TemperatureDifference) Expansion {
+	return Expansion{Strain: m.Alpha.Value * float64(dT), AlphaMean: m.Alpha.Value, Kind: "constant", Source: m.Alpha.Source}
+}
+
+func (m *Material) curve(c Curve, t1, t2 units.Temperature) Expansion {
+	e := Expansion{Strain: calc.IntervalStrain(c, t1, t2), Kind: c.Kind, Source: c.Source}
+	if d := float64(t2.Sub(t1)); d != 0 {
+		e.AlphaMean = e.Strain / d
+	} else {
+		// The instantaneous coefficient, by a central difference.
+		h := 0.01
+		e.AlphaMean = calc.IntervalStrain(c, t1.Add(-units.TemperatureDifference(h)), t1.Add(units.TemperatureDifference(h))) / (2 * h)
+	}
+	return e
+}
+
+// BetaWarnings returns the warnings for a liquid's constant volumetric
+// coefficient used from t1 to t2.
+func (m *Material) BetaWarnings(t1, t2 units.Temperature) []string {
+	b := m.Beta
+	if b == nil || !b.HasRange || (within(t1, b.TMin, b.TMax) && within(t2, b.TMin, b.TMax)) {
+		return nil
+	}
+	return []string{fmt.Sprintf("the interval %s to %s lies outside %s, the range the volumetric coefficient of %s holds for",
+		celsius(t1), celsius(t2), span(b.TMin, b.TMax), m.ID)}
+}
+
+func within(t, lo, hi units.Temperature) bool { return t >= lo-1e-9 && t <= hi+1e-9 }
+
+func celsius(t units.Temperature) string {
+	return units.FormatNumber(math.Round(t.Celsius()*100)/100) + " degC"
+}
+
+func span(lo, hi units.Temperature) string {
+	return celsius(lo) + " to " + celsius(hi)
+}

@@ -1,0 +1,391 @@
+package units
+
+import (
+	"errors"
+	"math"
+	"strconv"
+	"strings"
+)
+
+// Errors reported by the parser, wrapped in *Error. Test them with errors.Is.
+var (
+	ErrSyntax      = errors.New("malformed")
+	ErrNumber      = errors.New("not a finite decimal number")
+	ErrNoUnit      = errors.New("missing unit")
+	ErrUnknownUnit = errors.New("unknown unit")
+	ErrDimension   = errors.New("wrong dimension")
+	ErrBelowZero   = errors.New("below absolute zero")
+)
+
+// Error records a failed parse: what went wrong, in which input.
+type Error struct {
+	Input string // the text that was parsed
+	Err   error  // one of the Err* sentinels
+	Msg   string // the whole message, quoting the input
+}
+
+func (e *Error) Error() string { return e.Msg }
+
+// Unwrap returns the sentinel, for errors.Is.
+func (e *Error) Unwrap() error { return e.Err }
+
+func errorf(input string, err error, msg string) *Error {
+	return &Error{Input: input, Err: err, Msg: msg}
+}
+
+// Unit is a parsed unit expression: its dimension, the SI value of one
+// unit and, for a single temperature symbol, the offset of its scale.
+type Unit struct {
+	Symbol string // the expression as written, trimmed
+	Dim    Dim
+	Factor float64 // SI value of one unit; for temperatures, of one interval
+	// Offset is the offset of a temperature scale: K = (v + Offset) * Factor.
+	// It is set only for a single temperature symbol (degC, degF, ...),
+	// and used only where a field holds an absolute temperature.
+	Offset float64
+	scale  bool // a single temperature symbol
+}
+
+// Quantity is a number with its unit, as written by the caller.
+type Quantity struct {
+	Value float64
+	Unit  Unit
+}
+
+// SI returns the value in SI units. A temperature is taken as an interval
+// (a temperature difference); use Temperature for absolute temperatures.
+func (q Quantity) SI() float64 { return q.Value * q.Unit.Factor }
+
+// String formats the quantity as value, space, unit.
+func (q Quantity) String() string {
+	if q.Unit.Symbol == "" || q.Unit.Symbol == "1" {
+		return FormatNumber(q.Value)
+	}
+	return FormatNumber(q.Value) + " " + q.Unit.Symbol
+}
+
+// Parse reads a quantity: a decimal number followed by a unit expression,
+// with or without a space between them.
+//
+// The grammar, in which spaces are allowed around the operators:
+//
+//	quantity = number [" "] unit
+//	number   = ["+" | "-"] (digits ["." [digits]] | "." digits) [("e" | "E") ["+" | "-"] digits]
+//	unit     = ["/"] term {("*" | "." | "·" | "/") term}
+//	term     = symbol [exponent] | "1" | "(" unit ")" [exponent]
+//	exponent = digits | "^" ["+" | "-"] digits | "²" | "³" | "⁴"
+//	symbol   = an entry of the unit table, optionally after an SI prefix
+//
+// Multiplication and division associate to the left, so "um/m/K" is
+// micrometre per metre per kelvin. A leading "/" (UCUM style, "12e-6/K")
+// means one over the rest. A digit run straight after a symbol is its
+// exponent ("mm2", "cm4"). Hexadecimal, NaN and infinite numbers are
+// refused, as are numbers too large for a float64.
+func Parse(s string) (Quantity, error) {
+	in := strings.TrimSpace(s)
+	n := scanNumber(in)
+	if n == 0 {
+		if in == "" {
+			return Quantity{}, errorf(s, ErrSyntax, "empty value")
+		}
+		return Quantity{}, errorf(s, ErrNumber, "no number at the start of "+strconv.Quote(s)+"; write a value such as \"30 m\"")
+	}
+	v, err := strconv.ParseFloat(in[:n], 64)
+	if err != nil || math.IsInf(v, 0) {
+		return Quantity{}, errorf(s, ErrNumber, "number out of range in "+strconv.Quote(s))
+	}
+	rest := strings.TrimSpace(in[n:])
+	if rest == "" {
+		return Quantity{Value: v, Unit: Unit{Symbol: "", Dim: Dimensionless, Factor: 1}}, nil
+	}
+	if strings.HasPrefix(rest, ",") && n < len(in) && len(rest) > 1 && isDigit(rest[1]) {
+		return Quantity{}, errorf(s, ErrNumber, "use \".\" as the decimal separator in "+strconv.Quote(s))
+	}
+	u, err := parseUnit(rest, s)
+	if err != nil {
+		return Quantity{}, err
+	}
+	if math.IsInf(v*u.Factor, 0) {
+		return Quantity{}, errorf(s, ErrNumber, "number out of range in "+strconv.Quote(s))
+	}
+	return Quantity{Value: v, Unit: u}, nil
+}
+
+// ParseUnit reads a unit expression on its own, such as "mm", "1/degF" or
+// "N/mm2"; the grammar is Parse's.
+func ParseUnit(s string) (Unit, error) {
+	t := strings.TrimSpace(s)
+	if t == "" {
+		return Unit{}, errorf(s, ErrNoUnit, "empty unit")
+	}
+	return parseUnit(t, s)
+}
+
+// New makes a quantity from a number and a unit expression, as in the
+// JSON object form {"value": 30, "unit": "m"}.
+func New(value float64, unit string) (Quantity, error) {
+	if math.IsNaN(value) || math.IsInf(value, 0) {
+		return Quantity{}, errorf(unit, ErrNumber, "value is not a finite number")
+	}
+	u, err := ParseUnit(unit)
+	if err != nil {
+		return Quantity{}, err
+	}
+	if math.IsInf(value*u.Factor, 0) {
+		return Quantity{}, errorf(unit, ErrNumber, "number out of range")
+	}
+	return Quantity{Value: value, Unit: u}, nil
+}
+
+// scanNumber returns the length of the decimal number at the start of s.
+func scanNumber(s string) int {
+	i := 0
+	if i < len(s) && (s[i] == '+' || s[i] == '-') {
+		i++
+	}
+	digits := 0
+	for i < len(s) && isDigit(s[i]) {
+		i++
+		digits++
+	}
+	if i < len(s) && s[i] == '.' {
+		j := i + 1
+		frac := 0
+		for j < len(s) && isDigit(s[j]) {
+			j++
+			frac++
+		}
+		if digits+frac > 0 {
+			i = j
+			digits += frac
+		}
+	}
+	if digits == 0 {
+		return 0
+	}
+	// An exponent only when e is followed by digits: "5 e" is not one.
+	if i < len(s) && (s[i] == 'e' || s[i] == 'E') {
+		j := i + 1
+		if j < len(s) && (s[j] == '+' || s[j] == '-') {
+			j++
+		}
+		k := j
+		for k < len(s) && isDigit(s[k]) {
+			k++
+		}
+		if k > j {
+			i = k
+		}
+	}
+	// A hexadecimal or otherwise glued-on number ("0x1p3") is not a number.
+	if i < len(s) && (s[i] == 'x' || s[i] == 'X' || s[i] == '_') && digits > 0 {
+		return 0
+	}
+	return i
+}
+
+func isDigit(c byte) bool { return '0' <= c && c <= '9' }
+
+// unitParser is a recursive-descent parser over a unit expression.
+type unitParser struct {
+	src   string // the whole input, for messages
+	s     string // the unit expression
+	i     int
+	depth int
+	terms int
+	last  symbol // the only symbol, while there is exactly one
+}
+
+func parseUnit(expr, src string) (Unit, error) {
+	p := &unitParser{src: src, s: expr}
+	f, d, err := p.expr()
+	if err != nil {
+		return Unit{}, err
+	}
+	p.space()
+	if p.i < len(p.s) {
+		return Unit{}, p.fail(ErrSyntax, "unexpected "+strconv.Quote(p.s[p.i:]))
+	}
+	u := Unit{Symbol: expr, Dim: d, Factor: f}
+	if p.terms == 1 && d == Temp && p.last.dim == Temp {
+		u.scale = true
+		u.Offset = p.last.offset
+		u.Factor = p.last.factor
+	}
+	return u, nil
+}
+
+func (p *unitParser) fail(err error, what string) *Error {
+	return errorf(p.src, err, what+" in "+strconv.Quote(p.src))
+}
+
+func (p *unitParser) space() {
+	for p.i < len(p.s) && p.s[p.i] == ' ' {
+		p.i++
+	}
+}
+
+// expr = ["/"] term {op term}
+func (p *unitParser) expr() (float64, Dim, error) {
+	p.space()
+	factor, dim := 1.0, Dimensionless
+	div := false
+	if p.i < len(p.s) && p.s[p.i] == '/' {
+		div = true
+		p.i++
+	}
+	for {
+		f, d, err := p.term()
+		if err != nil {
+			return 0, Dim{}, err
+		}
+		if div {
+			factor /= f
+			dim = dim.Mul(d.Pow(-1))
+		} else {
+			factor *= f
+			dim = dim.Mul(d)
+		}
+		p.space()
+		if p.i >= len(p.s) {
+			return factor, dim, nil
+		}
+		switch {
+		case p.s[p.i] == '*' || p.s[p.i] == '.':
+			div = false
+			p.i++
+		case strings.HasPrefix(p.s[p.i:], "·"):
+			div = false
+			p.i += len("·")
+		case p.s[p.i] == '/':
+			div = true
+			p.i++
+		default:
+			return factor, dim, nil
+		}
+	}
+}
+
+// term = symbol [exponent] | "(" expr ")" [exponent]
+func (p *unitParser) term() (float64, Dim, error) {
+	p.space()
+	if p.i >= len(p.s) {
+		return 0, Dim{}, p.fail(ErrSyntax, "unit expression ends early")
+	}
+	var f float64
+	var d Dim
+	if p.s[p.i] == '(' {
+		if p.depth >= 4 {
+			return 0, Dim{}, p.fail(ErrSyntax, "too many nested parentheses")
+		}
+		p.depth++
+		p.i++
+		var err error
+		f, d, err = p.expr()
+		if err != nil {
+			return 0, Dim{}, err
+		}
+		p.space()
+		if p.i >= len(p.s) || p.s[p.i] != ')' {
+			return 0, Dim{}, p.fail(ErrSyntax, "missing \")\"")
+		}
+		p.i++
+		p.depth--
+		p.terms += 2 // a group is never a bare temperature scale
+	} else {
+		start := p.i
+		for p.i < len(p.s) && isSymbolByte(p.s, p.i) {
+			p.i++
+		}
+		name := p.s[start:p.i]
+		// Letters followed by digits: the digits are an exponent (mm2),
+		// except inside a bracketed UCUM code or for the unit "1".
+		if name == "" {
+			if p.i < len(p.s) && p.s[p.i] == '1' {
+				p.i++
+				name = "1"
+			} else {
+				return 0, Dim{}, p.fail(ErrSyntax, "unexpected "+strconv.Quote(p.s[p.i:]))
+			}
+		}
+		u, ok := lookup(name)
+		if !ok {
+			msg := "unknown unit " + strconv.Quote(name)
+			if h, ok := hints[name]; ok {
+				msg += " (" + h + ")"
+			}
+			return 0, Dim{}, errorf(p.src, ErrUnknownUnit, msg+" in "+strconv.Quote(p.src))
+		}
+		f, d = u.factor, u.dim
+		p.terms++
+		p.last = u
+	}
+	n, err := p.exponent()
+	if err != nil {
+		return 0, Dim{}, err
+	}
+	if n != 1 {
+		p.terms++ // a power of a temperature is an interval unit
+		f = math.Pow(f, float64(n))
+		d = d.Pow(n)
+	}
+	return f, d, nil
+}
+
+// isSymbolByte reports whether the byte at i continues a unit symbol:
+// letters, UTF-8 letters such as µ and °, brackets of UCUM codes, % and
+// the underscore inside brackets.
+func isSymbolByte(s string, i int) bool {
+	c := s[i]
+	switch {
+	case 'a' <= c && c <= 'z', 'A' <= c && c <= 'Z', c == '%', c == '[', c == ']', c == '_':
+		return true
+	case c >= 0x80:
+		// Superscript digits (² ³ ⁴) and the middle dot are operators or
+		// exponents, not part of a symbol.
+		return !strings.HasPrefix(s[i:], "²") && !strings.HasPrefix(s[i:], "³") &&
+			!strings.HasPrefix(s[i:], "⁴") && !strings.HasPrefix(s[i:], "·")
+	}
+	return false
+}
+
+func (p *unitParser) exponent() (int8, error) {
+	if p.i >= len(p.s) {
+		return 1, nil
+	}
+	for sup, n := range map[string]int8{"²": 2, "³": 3, "⁴": 4} {
+		if strings.HasPrefix(p.s[p.i:], sup) {
+			p.i += len(sup)
+			return n, nil
+		}
+	}
+	neg := false
+	start := p.i
+	if p.s[p.i] == '^' {
+		p.i++
+		if p.i < len(p.s) && (p.s[p.i] == '-' || p.s[p.i] == '+') {
+			neg = p.s[p.i] == '-'
+			p.i++
+		}
+		if p.i >= len(p.s) || !isDigit(p.s[p.i]) {
+			return 0, p.fail(ErrSyntax, "exponent without digits")
+		}
+	} else if !isDigit(p.s[p.i]) {
+		return 1, nil
+	}
+	ds := p.i
+	for p.i < len(p.s) && isDigit(p.s[p.i]) {
+		p.i++
+	}
+	if p.i-ds > 1 {
+		return 0, p.fail(ErrSyntax, "exponent "+strconv.Quote(p.s[start:p.i])+" too large")
+	}
+	n := int8(p.s[ds] - '0')
+	if n == 0 {
+		return 0, p.fail(ErrSyntax, "exponent 0")
+	}
+	if neg {
+		n = -n
+	}
+	return n, nil
+}
