@@ -121,7 +121,7 @@ func (p *params) dim(name string, d units.Dim) (float64, bool) {
 
 func dimMessage(err error, q units.Quantity, d units.Dim) string {
 	if errors.Is(err, units.ErrNoUnit) {
-		return "a bare number is not a " + d.String() + ": give its unit, such as " + strconv.Quote(d.Example())
+		return "a bare number is not " + d.Article() + " " + d.String() + ": give its unit, such as " + strconv.Quote(d.Example())
 	}
 	return err.Error()
 }

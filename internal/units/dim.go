@@ -44,8 +44,7 @@ var (
 	Stiffness     = Dim{M: 1, T: -2}
 	Moment        = Dim{L: 2, M: 1, T: -2}
 	Density       = Dim{L: -3, M: 1}
-	// CurvaturePerTemp is the dimension of a flexivity (ASTM B106) and of
-	// a curvature per kelvin.
+	// CurvaturePerTemp is the dimension of a curvature per kelvin.
 	CurvaturePerTemp = Dim{L: -1, Theta: -1}
 )
 
@@ -69,20 +68,22 @@ var dimNames = map[Dim]string{
 }
 
 var dimExamples = map[Dim]string{
-	Dimensionless: "0.5",
-	Length:        "30 m",
-	Area:          "0.25 m2",
-	Volume:        "2 m3",
-	SecondMoment:  "8000 cm4",
-	Curvature:     "0.002 1/m",
-	Mass:          "12 kg",
-	Temp:          "20 degC",
-	Coefficient:   "12e-6/K",
-	Force:         "150 kN",
-	Stress:        "205 GPa",
-	Stiffness:     "50 kN/mm",
-	Moment:        "40 kN*m",
-	Density:       "1000 kg/m3",
+	Dimensionless:    "0.5",
+	Length:           "30 m",
+	Area:             "0.25 m2",
+	Volume:           "2 m3",
+	SecondMoment:     "8000 cm4",
+	Curvature:        "0.002 1/m",
+	Mass:             "12 kg",
+	Temp:             "20 degC",
+	Coefficient:      "12e-6/K",
+	Force:            "150 kN",
+	Stress:           "205 GPa",
+	Stiffness:        "50 kN/mm",
+	Moment:           "40 kN*m",
+	Density:          "1000 kg/m3",
+	Time:             "30 s",
+	CurvaturePerTemp: "2e-5 1/(m*K)",
 }
 
 // String names the dimension in words, or as exponents when it has no name.
@@ -117,6 +118,14 @@ func (d Dim) Example() string {
 		return e
 	}
 	return ""
+}
+
+// Article returns "a" or "an" for the dimension's name.
+func (d Dim) Article() string {
+	if n := d.String(); n != "" && strings.ContainsRune("aeiou", rune(n[0])) {
+		return "an"
+	}
+	return "a"
 }
 
 func itoa(n int) string {

@@ -219,6 +219,22 @@ func (p *unitParser) fail(err error, what string) *Error {
 	return errorf(p.src, err, what+" in "+strconv.Quote(p.src))
 }
 
+// maxExponent bounds each base exponent of a unit, so that no product of
+// powers can overflow the int8 of Dim, and no factor leave float64 range.
+const maxExponent = 12
+
+func (p *unitParser) sane(f float64, d Dim) error {
+	for _, e := range [...]int8{d.L, d.M, d.T, d.Theta} {
+		if e > maxExponent || e < -maxExponent {
+			return p.fail(ErrSyntax, "unit with too high a power")
+		}
+	}
+	if !(f > 0) || math.IsInf(f, 0) || f < 1e-200 || f > 1e200 {
+		return p.fail(ErrSyntax, "unit too large or too small")
+	}
+	return nil
+}
+
 func (p *unitParser) space() {
 	for p.i < len(p.s) && p.s[p.i] == ' ' {
 		p.i++
@@ -245,6 +261,9 @@ func (p *unitParser) expr() (float64, Dim, error) {
 		} else {
 			factor *= f
 			dim = dim.Mul(d)
+		}
+		if err := p.sane(factor, dim); err != nil {
+			return 0, Dim{}, err
 		}
 		p.space()
 		if p.i >= len(p.s) {
@@ -301,9 +320,12 @@ func (p *unitParser) term() (float64, Dim, error) {
 		// Letters followed by digits: the digits are an exponent (mm2),
 		// except inside a bracketed UCUM code or for the unit "1".
 		if name == "" {
-			if p.i < len(p.s) && p.s[p.i] == '1' {
+			if p.i < len(p.s) && p.s[p.i] == '1' && (p.i+1 == len(p.s) || !isDigit(p.s[p.i+1])) {
+				// The unit one takes no exponent.
 				p.i++
-				name = "1"
+				p.terms++
+				p.last = table["1"]
+				return 1, Dimensionless, nil
 			} else {
 				return 0, Dim{}, p.fail(ErrSyntax, "unexpected "+strconv.Quote(p.s[p.i:]))
 			}
@@ -328,6 +350,9 @@ func (p *unitParser) term() (float64, Dim, error) {
 		p.terms++ // a power of a temperature is an interval unit
 		f = math.Pow(f, float64(n))
 		d = d.Pow(n)
+	}
+	if err := p.sane(f, d); err != nil {
+		return 0, Dim{}, err
 	}
 	return f, d, nil
 }

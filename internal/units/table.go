@@ -18,8 +18,7 @@ type symbol struct {
 
 // Exact factors from NIST SP 811 (2008), Appendix B: 1 in = 0.0254 m,
 // 1 ft = 0.3048 m, 1 yd = 0.9144 m, 1 lb = 0.45359237 kg,
-// 1 lbf = 4.4482216152605 N, 1 psi = 6894.757293168 Pa (rounded in SP 811
-// to 6.894757e3; the value here is lbf/in^2 computed exactly),
+// 1 lbf = 4.4482216152605 N, 1 psi = 1 lbf/in^2 = 6894.757293168 Pa,
 // 1 US gallon = 231 in^3 = 3.785411784e-3 m^3, 1 degF interval = 5/9 K.
 const (
 	inch       = 0.0254

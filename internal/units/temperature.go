@@ -67,7 +67,7 @@ func (q Quantity) In(want Dim) (float64, error) {
 
 func dimError(q Quantity, want Dim, what string) *Error {
 	if what == "" {
-		what = "a " + want.String()
+		what = want.Article() + " " + want.String()
 	}
 	ex := want.Example()
 	if want == Temp {
@@ -76,7 +76,7 @@ func dimError(q Quantity, want Dim, what string) *Error {
 	if q.Unit.Symbol == "" && want != Dimensionless {
 		return errorf(q.String(), ErrNoUnit, "missing unit in "+strconv.Quote(q.String())+": expected "+what+" with its unit, such as "+strconv.Quote(ex))
 	}
-	msg := strconv.Quote(q.String()) + " is a " + q.Unit.Dim.String() + ", expected " + what
+	msg := strconv.Quote(q.String()) + " is " + q.Unit.Dim.Article() + " " + q.Unit.Dim.String() + ", expected " + what
 	if ex != "" {
 		msg += " such as " + strconv.Quote(ex)
 	}
