@@ -23,6 +23,14 @@ type Options struct {
 	Commit       string       // source revision, for the build-info metric
 	MaxBodyBytes int64        // cap of a calculation's JSON body
 	Metrics      http.Handler // serves /metrics when set (nil when metrics listen elsewhere)
+	// APIKeys, when not nil, are the accepted keys (see auth.go).
+	APIKeys *APIKeys
+	// MaxInFlight bounds the requests served at once; beyond it the
+	// service answers 503 with Retry-After. 0: no bound.
+	MaxInFlight int
+	// BatchMaxRows and BatchMaxBytes bound one batch request.
+	BatchMaxRows  int
+	BatchMaxBytes int64
 }
 
 // Handler holds what every request needs. Build it with New.
@@ -65,7 +73,7 @@ func (h *Handler) Router() *gin.Engine {
 	r.HandleMethodNotAllowed = true
 	r.RedirectTrailingSlash = false
 	r.RedirectFixedPath = false
-	r.Use(h.requestID, h.observe, h.recover)
+	r.Use(h.requestID, h.observe, h.recover, h.shed, h.auth, h.cache)
 	for _, rt := range h.routes() {
 		r.Handle(rt.method, rt.path, rt.handler)
 	}
@@ -108,6 +116,7 @@ func (h *Handler) routes() []route {
 		hf := h.calculation(c)
 		rs = append(rs, route{http.MethodGet, "/v1/" + c.name, hf}, route{http.MethodPost, "/v1/" + c.name, hf})
 	}
+	rs = append(rs, h.batchRoutes()...)
 	return rs
 }
 
@@ -195,7 +204,25 @@ var standingCautions = []string{
 	"A licensed engineer checks the design before anything is built.",
 }
 
+// renderer is implemented by results that have formats of their own, such
+// as a table's CSV or a chart. render returns a nil body to fall back to
+// the generic formats.
+type renderer interface {
+	render(out *outputOptions, resp *Response) (body []byte, contentType string, err error)
+}
+
 func (h *Handler) write(c *gin.Context, out *outputOptions, resp *Response, items []resultItem) {
+	if r, ok := resp.Results.(renderer); ok {
+		body, ct, err := r.render(out, resp)
+		if err != nil {
+			h.problem(c, out, err)
+			return
+		}
+		if body != nil {
+			c.Data(http.StatusOK, ct, body)
+			return
+		}
+	}
 	var body []byte
 	switch out.format {
 	case "text":
