@@ -59,6 +59,10 @@ type config struct {
 	maxHeaderBytes  int
 	maxBodyBytes    int64
 	logLevel        string
+	apiKeysFile     string
+	maxInFlight     int64
+	batchMaxRows    int64
+	batchMaxBytes   int64
 }
 
 // parseConfig reads flags, falling back to environment variables, then
@@ -106,6 +110,10 @@ func parseConfig(args []string, getenv func(string) string, out io.Writer) (conf
 	integer(&maxHeader, "max-header-bytes", 16<<10, "largest request header block, bytes")
 	integer(&c.maxBodyBytes, "max-body-bytes", 64<<10, "largest JSON body of a calculation, bytes")
 	str(&c.logLevel, "log-level", "info", "debug, info, warn or error")
+	str(&c.apiKeysFile, "api-keys-file", "", "file of accepted API keys as SHA-256 hashes with labels; empty: no keys required")
+	integer(&c.maxInFlight, "max-in-flight", 256, "requests served at once; beyond, 503 with Retry-After (0: no bound)")
+	integer(&c.batchMaxRows, "batch-max-rows", 100000, "rows of one batch request")
+	integer(&c.batchMaxBytes, "batch-max-bytes", 32<<20, "body of one batch request, bytes")
 	if err := fs.Parse(args); err != nil {
 		return c, err
 	}
@@ -165,7 +173,8 @@ func run(ctx context.Context, args []string, getenv func(string) string, stdout 
 	reg := prometheus.NewRegistry()
 	reg.MustRegister(collectors.NewGoCollector(), collectors.NewProcessCollector(collectors.ProcessCollectorOpts{}))
 	metricsHandler := promhttp.HandlerFor(reg, promhttp.HandlerOpts{Registry: reg})
-	opts := handlers.Options{Version: version, Commit: commit, MaxBodyBytes: cfg.maxBodyBytes}
+	opts := handlers.Options{Version: version, Commit: commit, MaxBodyBytes: cfg.maxBodyBytes,
+		MaxInFlight: int(cfg.maxInFlight), BatchMaxRows: int(cfg.batchMaxRows), BatchMaxBytes: cfg.batchMaxBytes}
 	if cfg.metricsAddr == "" {
 		opts.Metrics = metricsHandler
 	}
