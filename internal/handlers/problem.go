@@ -45,10 +45,10 @@ const ProblemTypeBase = "/problems/"
 // Problem is an RFC 9457 problem details object, with the list of every
 // bad parameter.
 type Problem struct {
-	Type      string       `json:"type" example:"/problems/invalid-input"`
-	Title     string       `json:"title" example:"The request cannot be read"`
-	Status    int          `json:"status" example:"400"`
-	Detail    string       `json:"detail" example:"invalid parameter \"length\": unknown unit \"mtr\" in \"30 mtr\""`
+	Type      string       `json:"type" example:"/problems/invalid-input" validate:"required"`
+	Title     string       `json:"title" example:"The request cannot be read" validate:"required"`
+	Status    int          `json:"status" example:"400" validate:"required"`
+	Detail    string       `json:"detail" example:"invalid parameter \"length\": unknown unit \"mtr\" in \"30 mtr\"" validate:"required"`
 	Instance  string       `json:"instance,omitempty" example:"/v1/expansion/linear"`
 	RequestID string       `json:"request_id,omitempty"`
 	Errors    []FieldError `json:"errors,omitempty"`
@@ -56,7 +56,7 @@ type Problem struct {
 
 // FieldError names one bad parameter and what is wrong with it.
 type FieldError struct {
-	Parameter string `json:"parameter" example:"length"`
+	Parameter string `json:"parameter" example:"length" validate:"required"`
 	Detail    string `json:"detail" example:"unknown unit \"mtr\" in \"30 mtr\""`
 }
 

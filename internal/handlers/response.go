@@ -21,8 +21,8 @@ func (n Number) MarshalJSON() ([]byte, error) {
 
 // Value is a number with its unit.
 type Value struct {
-	Value Number `json:"value" swaggertype:"number" example:"27"`
-	Unit  string `json:"unit" example:"mm"`
+	Value Number `json:"value" swaggertype:"number" example:"27" validate:"required"`
+	Unit  string `json:"unit" example:"mm" validate:"required"`
 	si    float64
 }
 
@@ -39,14 +39,14 @@ type Versions struct {
 
 // Response is the body of every calculation.
 type Response struct {
-	Calculation string   `json:"calculation" example:"expansion/linear"`
-	Results     any      `json:"results"`
-	Inputs      Inputs   `json:"inputs"`
-	Method      string   `json:"method"`
-	References  []string `json:"references"`
-	Warnings    []string `json:"warnings"`
-	Cautions    []string `json:"cautions"`
-	Versions    Versions `json:"versions"`
+	Calculation string   `json:"calculation" example:"expansion/linear" validate:"required"`
+	Results     any      `json:"results" validate:"required"`
+	Inputs      Inputs   `json:"inputs" validate:"required"`
+	Method      string   `json:"method" validate:"required"`
+	References  []string `json:"references" validate:"required"`
+	Warnings    []string `json:"warnings" validate:"required"`
+	Cautions    []string `json:"cautions" validate:"required"`
+	Versions    Versions `json:"versions" validate:"required"`
 }
 
 // Input is one echoed request parameter: a quantity as the caller wrote

@@ -119,3 +119,13 @@ func (h *Handler) problemType(c *gin.Context) {
 	}
 	c.Data(http.StatusOK, "text/plain; charset=utf-8", []byte(strings.TrimSpace(d)+"\n"))
 }
+
+// metricsDoc godoc
+//
+//	@Summary		Prometheus metrics
+//	@Description	Text exposition format. Served here unless the deployment moves metrics to --metrics-addr.
+//	@Tags			service
+//	@Produce		plain
+//	@Success		200	{string}	string	"metrics"
+//	@Router			/metrics [get]
+func metricsDoc() {}

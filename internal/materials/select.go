@@ -41,60 +41,77 @@ func (e *OutOfRangeError) Error() string { return e.Detail }
 func (e *OutOfRangeError) Unwrap() error { return calc.ErrOutOfRange }
 
 // Linear returns the linear strain of the solid m from t1 to t2 by the
-// model asked for:
-//   - the constant coefficient where both temperatures lie within its
-//     range (with a warning, not an error, outside it when no curve
-//     exists or the constant was asked for);
-//   - else the first curve whose range holds both temperatures;
-//   - else an *OutOfRangeError, unless extrapolate is set, when the curve
-//     that covers most of the interval is evaluated beyond its range, or
-//     the constant used, with a warning.
+// model asked for.
+//
+// Auto takes the constant coefficient where both temperatures lie within
+// its range; else the first curve whose range holds both; else, while the
+// interval stays within the span of all the material's data, the constant
+// with a warning. Beyond all the data, and for Curve when no curve holds
+// the interval, it returns an *OutOfRangeError unless extrapolate is set:
+// then the curve that covers most of the interval is evaluated beyond its
+// range (or the constant used), with a warning. Constant uses the constant
+// coefficient whatever the temperatures, warning outside its range.
 func (m *Material) Linear(t1, t2 units.Temperature, model Model, extrapolate bool) (Expansion, error) {
 	if m.Alpha == nil {
 		return Expansion{}, fmt.Errorf("%s is a liquid: it has a volumetric coefficient, not a linear one", m.ID)
 	}
-	constantInRange := !m.Alpha.HasRange || (within(t1, m.Alpha.TMin, m.Alpha.TMax) && within(t2, m.Alpha.TMin, m.Alpha.TMax))
-	if model == Constant || (model == Auto && (constantInRange || len(m.Curves) == 0)) {
+	lo, hi := min(t1, t2), max(t1, t2)
+	constantInRange := !m.Alpha.HasRange || (within(lo, m.Alpha.TMin, m.Alpha.TMax) && within(hi, m.Alpha.TMin, m.Alpha.TMax))
+	outside := func() Expansion {
 		e := m.constant(t2.Sub(t1))
-		if !constantInRange {
-			e.Warnings = append(e.Warnings, fmt.Sprintf("the interval %s to %s lies outside %s, the range the constant coefficient of %s holds for; the movement is extrapolated",
-				celsius(t1), celsius(t2), span(m.Alpha.TMin, m.Alpha.TMax), m.ID))
+		e.Warnings = append(e.Warnings, fmt.Sprintf("the interval %s to %s lies outside %s, the range the constant coefficient of %s holds for; the movement is extrapolated",
+			celsius(t1), celsius(t2), span(m.Alpha.TMin, m.Alpha.TMax), m.ID))
+		return e
+	}
+	if model == CurveFit && len(m.Curves) == 0 {
+		return Expansion{}, &OutOfRangeError{Material: m.ID, Detail: m.ID + " has no temperature-dependent curve; use alpha_model=auto or constant"}
+	}
+	if model == Constant || (model == Auto && len(m.Curves) == 0) {
+		if constantInRange {
+			return m.constant(t2.Sub(t1)), nil
 		}
-		return e, nil
+		return outside(), nil
+	}
+	if model == Auto && constantInRange {
+		return m.constant(t2.Sub(t1)), nil
 	}
 	for _, c := range m.Curves {
 		if calc.InRange(c, t1) && calc.InRange(c, t2) {
 			return m.curve(c, t1, t2), nil
 		}
 	}
-	if len(m.Curves) == 0 {
-		return Expansion{}, &OutOfRangeError{Material: m.ID, Detail: fmt.Sprintf("%s has no temperature-dependent curve; ask alpha_model=constant or auto", m.ID)}
+	dataLo, dataHi := m.Alpha.TMin, m.Alpha.TMax
+	if !m.Alpha.HasRange {
+		dataLo, dataHi = lo, hi
 	}
 	ranges := ""
 	for i, c := range m.Curves {
-		lo, hi := c.Range()
+		clo, chi := c.Range()
+		dataLo, dataHi = min(dataLo, clo), max(dataHi, chi)
 		if i > 0 {
 			ranges += ", "
 		}
-		ranges += span(lo, hi)
+		ranges += span(clo, chi) + " (" + c.Kind + ")"
+	}
+	if model == Auto && within(lo, dataLo, dataHi) && within(hi, dataLo, dataHi) {
+		return outside(), nil
 	}
 	if !extrapolate {
 		return Expansion{}, &OutOfRangeError{Material: m.ID, Detail: fmt.Sprintf(
-			"the interval %s to %s is outside the temperature-dependent data of %s (%s); set extrapolate=true to extrapolate, or give alpha",
+			"the interval %s to %s is beyond the temperature-dependent data of %s (%s); set extrapolate=true to extrapolate, or give alpha",
 			celsius(t1), celsius(t2), m.ID, ranges)}
 	}
-	best, cover := m.Curves[0], -1.0
+	best, cover := m.Curves[0], math.Inf(-1)
 	for _, c := range m.Curves {
-		lo, hi := c.Range()
-		a, b := min(t1, t2), max(t1, t2)
-		if ov := float64(min(b, hi) - max(a, lo)); ov > cover {
+		clo, chi := c.Range()
+		if ov := float64(min(hi, chi) - max(lo, clo)); ov > cover {
 			best, cover = c, ov
 		}
 	}
 	e := m.curve(best, t1, t2)
-	lo, hi := best.Range()
+	blo, bhi := best.Range()
 	e.Warnings = append(e.Warnings, fmt.Sprintf("extrapolated: the interval %s to %s reaches beyond %s, the range of the %s data of %s",
-		celsius(t1), celsius(t2), span(lo, hi), best.Kind, m.ID))
+		celsius(t1), celsius(t2), span(blo, bhi), best.Kind, m.ID))
 	return e, nil
 }
 
