@@ -1,0 +1,207 @@
+package handlers
+
+import (
+	"math"
+	"net/http"
+	"net/url"
+	"strings"
+	"testing"
+)
+
+func q(kv ...string) string {
+	v := url.Values{}
+	for i := 0; i < len(kv); i += 2 {
+		v.Set(kv[i], kv[i+1])
+	}
+	return v.Encode()
+}
+
+func closeTo(got, want, rel float64) bool {
+	return math.Abs(got-want) <= rel*math.Abs(want)+1e-15
+}
+
+func TestLinearHTTP(t *testing.T) {
+	r := newTestHandler(t).Router()
+	tests := []struct {
+		name   string
+		query  string
+		result string
+		want   float64
+		unit   string
+	}{
+		// EN 1993-1-1 3.2.6 steel 12e-6/K (from memory, not re-read): 48 m x 12e-6 x 50 K = 28.8 mm.
+		{"catalogue steel", q("length", "48 m", "material", "structural-steel", "t_initial", "-15 degC", "t_final", "35 degC"), "delta_length", 28.8, "mm"},
+		// AASHTO LRFD 6.4.1 steel 6.5e-6/degF and eq. 3.12.2.3-1 (memory):
+		// 100 ft x 6.5e-6 x 120 degF = 0.078 ft = 0.936 in.
+		{"AASHTO in us units", q("length", "100 ft", "alpha", "6.5e-6 1/degF", "delta_t", "120 degF", "units", "us"), "delta_length", 0.936, "in"},
+		// The same with the temperatures absolute: 0..120 degF is still a 120 degF difference.
+		{"absolute degF", q("length", "100 ft", "alpha", "6.5e-6 1/degF", "t_initial", "0 degF", "t_final", "120 degF", "delta_length_unit", "in"), "delta_length", 0.936, "in"},
+		// A per-degF coefficient is per Fahrenheit interval (NIST SP 811, from memory): 6.5e-6/degF = 1.17e-5/K.
+		{"alpha in SI", q("length", "100 ft", "alpha", "6.5e-6 1/degF", "delta_t", "120 degF"), "alpha_mean", 1.17e-5, "1/K"},
+		{"object-free ppm", q("length", "10 m", "alpha", "11.7 ppm/K", "delta_t", "10 K"), "delta_length", 1.17, "mm"},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			d := decode(t, do(t, r, "GET", "/v1/expansion/linear?"+tt.query, "", ""))
+			got := d.Results[tt.result]
+			if !closeTo(got.Value, tt.want, 1e-11) || got.Unit != tt.unit {
+				t.Errorf("%s = %v %s, want %v %s", tt.result, got.Value, got.Unit, tt.want, tt.unit)
+			}
+			if len(d.Cautions) < 3 || d.Method == "" || len(d.References) == 0 {
+				t.Errorf("response lacks method, references or cautions: %+v", d)
+			}
+		})
+	}
+}
+
+func TestLinearPOSTEqualsGET(t *testing.T) {
+	r := newTestHandler(t).Router()
+	get := do(t, r, "GET", "/v1/expansion/linear?"+q("length", "30 m", "alpha", "12e-6/K", "delta_t", "40 K"), "", "")
+	post := do(t, r, "POST", "/v1/expansion/linear", "application/json", `{"length": {"value": 30, "unit": "m"}, "alpha": "12e-6/K", "delta_t": "40 K"}`)
+	if get.Code != 200 || post.Code != 200 || get.Body.String() != post.Body.String() {
+		t.Errorf("GET and POST differ:\n%s\n%s", get.Body.String(), post.Body.String())
+	}
+}
+
+func TestLinearCurves(t *testing.T) {
+	r := newTestHandler(t).Router()
+	// Cryogenic: 304 stainless 293 K -> 77 K by the NIST fit (read):
+	// e = (1 + f(77)) / (1 + f(293)) - 1 with f the published polynomial.
+	f := func(T float64) float64 {
+		return (-2.9554e2 - 3.9811e-1*T + 9.2683e-3*T*T - 2.0261e-5*T*T*T + 1.7127e-8*T*T*T*T) * 1e-5
+	}
+	want := 10 * ((1+f(77))/(1+f(293)) - 1) * 1000
+	d := decode(t, do(t, r, "GET", "/v1/expansion/linear?"+q("length", "10 m", "material", "stainless-steel-304", "t_initial", "293 K", "t_final", "77 K"), "", ""))
+	if got := d.Results["delta_length"].Value; !closeTo(got, want, 1e-9) {
+		t.Errorf("304 293->77 K delta_length = %v mm, want %v", got, want)
+	}
+	if !strings.Contains(d.Method, "curve") && !strings.Contains(d.Method, "strain") {
+		t.Errorf("method does not name the curve: %q", d.Method)
+	}
+	// Beyond every data of steel: 422 naming the material, unless extrapolate.
+	w := do(t, r, "GET", "/v1/expansion/linear?"+q("length", "10 m", "material", "structural-steel", "t_initial", "20 degC", "t_final", "1500 degC"), "", "")
+	if w.Code != http.StatusUnprocessableEntity {
+		t.Fatalf("steel to 1500 degC: status %d, want 422", w.Code)
+	}
+	if p := decodeProblem(t, w); len(p.Errors) != 1 || p.Errors[0].Parameter != "material" {
+		t.Errorf("problem names %+v, want material", p.Errors)
+	}
+	d = decode(t, do(t, r, "GET", "/v1/expansion/linear?"+q("length", "10 m", "material", "structural-steel", "t_initial", "20 degC", "t_final", "1500 degC", "extrapolate", "true"), "", ""))
+	if len(d.Warnings) == 0 {
+		t.Error("extrapolated answer carries no warning")
+	}
+}
+
+func TestAreaHTTP(t *testing.T) {
+	r := newTestHandler(t).Router()
+	// Isotropic plate: A (1 + alpha dT)^2 (any physics handbook, from memory).
+	e := 24e-6 * 50.0
+	d := decode(t, do(t, r, "GET", "/v1/expansion/area?"+q("length", "2.4 m", "width", "1.2 m", "alpha", "24e-6/K", "delta_t", "50 K"), "", ""))
+	if got, want := d.Results["final_area"].Value, 2.88*(1+e)*(1+e); !closeTo(got, want, 1e-11) {
+		t.Errorf("final_area = %v, want %v", got, want)
+	}
+	if got, want := d.Results["delta_area_linear"].Value, 2.88*2*e*1e6; !closeTo(got, want, 1e-11) {
+		t.Errorf("delta_area_linear = %v mm2, want %v", got, want)
+	}
+	// A hole grows as the material would: diameter x (1 + e).
+	d = decode(t, do(t, r, "GET", "/v1/expansion/area?"+q("diameter", "80 mm", "hole", "true", "alpha", "12e-6/K", "delta_t", "100 K"), "", ""))
+	if got, want := d.Results["delta_diameter"].Value, 80*12e-6*100; !closeTo(got, want, 1e-11) {
+		t.Errorf("hole delta_diameter = %v mm, want %v", got, want)
+	}
+	if !strings.Contains(d.Method, "hole") {
+		t.Errorf("method does not mention the hole: %q", d.Method)
+	}
+	// Orthotropic.
+	d = decode(t, do(t, r, "GET", "/v1/expansion/area?"+q("length", "1 m", "width", "1 m", "alpha_x", "10e-6/K", "alpha_y", "30e-6/K", "delta_t", "100 K"), "", ""))
+	if got, want := d.Results["final_area"].Value, 1.001*1.003; !closeTo(got, want, 1e-12) {
+		t.Errorf("orthotropic final_area = %v, want %v", got, want)
+	}
+}
+
+func TestVolumeHTTP(t *testing.T) {
+	r := newTestHandler(t).Router()
+	// Water 10 -> 80 degC in a full steel vessel: V rho(10)/rho(80) by Kell
+	// (1975), capacity (1 + 12e-6 x 70)^3 (verification.md, Liquids).
+	kell := func(c float64) float64 {
+		return (999.83952 + 16.945176*c - 7.9870401e-3*c*c - 46.170461e-6*c*c*c + 105.56302e-9*c*c*c*c - 280.54253e-12*c*c*c*c*c) / (1 + 16.879850e-3*c)
+	}
+	v := 2.5
+	liquid := v * kell(10) / kell(80)
+	capacity := v * math.Pow(1+12e-6*70, 3)
+	d := decode(t, do(t, r, "GET", "/v1/expansion/volume?"+q("volume", "2.5 m3", "material", "water", "t_initial", "10 degC", "t_final", "80 degC", "vessel_material", "structural-steel"), "", ""))
+	if got := d.Results["final_volume"].Value; !closeTo(got, liquid, 1e-11) {
+		t.Errorf("final_volume = %v, want %v", got, liquid)
+	}
+	if got, want := d.Results["net_overflow"].Value, (liquid-capacity)*1000; !closeTo(got, want, 1e-9) {
+		t.Errorf("net_overflow = %v L, want %v", got, want)
+	}
+	if len(d.Warnings) == 0 {
+		t.Error("an overflowing vessel carries no warning")
+	}
+	// Solid: V (1 + e)^3 and 3 e V.
+	d = decode(t, do(t, r, "GET", "/v1/expansion/volume?"+q("volume", "1 m3", "alpha", "10e-6/K", "delta_t", "100 K"), "", ""))
+	if got, want := d.Results["delta_volume"].Value, (math.Pow(1.001, 3)-1)*1000; !closeTo(got, want, 1e-11) {
+		t.Errorf("solid delta_volume = %v L, want %v", got, want)
+	}
+	if got := d.Results["delta_volume_linear"].Value; !closeTo(got, 3, 1e-12) {
+		t.Errorf("solid delta_volume_linear = %v L, want 3", got)
+	}
+	// Water by a difference only: it needs absolute temperatures.
+	w := do(t, r, "GET", "/v1/expansion/volume?"+q("volume", "1 m3", "material", "water", "delta_t", "10 K"), "", "")
+	if w.Code != http.StatusUnprocessableEntity {
+		t.Errorf("water by delta_t: %d, want 422", w.Code)
+	}
+}
+
+// TestContractErrors walks the contract's error list over HTTP.
+func TestContractErrors(t *testing.T) {
+	r := newTestHandler(t).Router()
+	tests := []struct {
+		name, method, target, ctype, body string
+		status                            int
+		params                            []string
+	}{
+		{"bare number", "GET", "/v1/expansion/linear?" + q("length", "30", "alpha", "12e-6/K", "delta_t", "10 K"), "", "", 400, []string{"length"}},
+		{"unknown unit", "GET", "/v1/expansion/linear?" + q("length", "30 mtr", "alpha", "12e-6/K", "delta_t", "10 K"), "", "", 400, []string{"length"}},
+		{"NaN", "GET", "/v1/expansion/linear?" + q("length", "NaN m", "alpha", "12e-6/K", "delta_t", "10 K"), "", "", 400, []string{"length"}},
+		{"Inf", "GET", "/v1/expansion/linear?" + q("length", "1e999 m", "alpha", "12e-6/K", "delta_t", "10 K"), "", "", 400, []string{"length"}},
+		{"wrong dimension", "GET", "/v1/expansion/linear?" + q("length", "30 kg", "alpha", "12e-6/K", "delta_t", "10 K"), "", "", 400, []string{"length"}},
+		{"missing", "GET", "/v1/expansion/linear?" + q("alpha", "12e-6/K", "delta_t", "10 K"), "", "", 400, []string{"length"}},
+		{"unknown field", "GET", "/v1/expansion/linear?" + q("length", "3 m", "alpha", "12e-6/K", "delta_t", "10 K", "lenght", "3 m"), "", "", 400, []string{"lenght"}},
+		{"every bad field at once", "GET", "/v1/expansion/linear?" + q("length", "3", "alpha", "12e-6/m", "delta_t", "10"), "", "", 400, []string{"length", "alpha", "delta_t"}},
+		{"malformed JSON", "POST", "/v1/expansion/linear", "application/json", `{"length": "3 m",`, 400, nil},
+		{"trailing data", "POST", "/v1/expansion/linear", "application/json", `{"length": "3 m", "alpha": "12e-6/K", "delta_t": "1 K"} {}`, 400, nil},
+		{"duplicate key", "POST", "/v1/expansion/linear", "application/json", `{"length": "3 m", "length": "4 m", "alpha": "12e-6/K", "delta_t": "1 K"}`, 400, nil},
+		{"unknown material", "GET", "/v1/expansion/linear?" + q("length", "3 m", "material", "unobtainium", "delta_t", "10 K"), "", "", 404, []string{"material"}},
+		{"unknown route", "GET", "/v1/expansion/linearr", "", "", 404, nil},
+		{"unknown material id", "GET", "/v1/materials/unobtainium", "", "", 404, nil},
+		{"wrong method", "DELETE", "/v1/expansion/linear", "", "", 405, nil},
+		{"body too large", "POST", "/v1/expansion/linear", "application/json", `{"length": "` + strings.Repeat("1", 70<<10) + ` m"}`, 413, nil},
+		{"wrong content type", "POST", "/v1/expansion/linear", "text/plain", `length=3m`, 415, nil},
+		{"negative length", "GET", "/v1/expansion/linear?" + q("length", "-3 m", "alpha", "12e-6/K", "delta_t", "10 K"), "", "", 422, []string{"length"}},
+		{"below 0 K", "GET", "/v1/expansion/linear?" + q("length", "3 m", "alpha", "12e-6/K", "t_initial", "-300 degC", "t_final", "20 degC"), "", "", 422, []string{"t_initial"}},
+		{"contradictory", "GET", "/v1/expansion/linear?" + q("length", "3 m", "alpha", "12e-6/K", "delta_t", "10 K", "t_initial", "0 degC", "t_final", "10 degC"), "", "", 422, []string{"delta_t"}},
+		{"bad output unit", "GET", "/v1/expansion/linear?" + q("length", "3 m", "alpha", "12e-6/K", "delta_t", "10 K", "delta_length_unit", "degC"), "", "", 400, []string{"delta_length_unit"}},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			w := do(t, r, tt.method, tt.target, tt.ctype, tt.body)
+			if w.Code != tt.status {
+				t.Fatalf("status %d, want %d: %s", w.Code, tt.status, w.Body.String())
+			}
+			p := decodeProblem(t, w)
+			if p.Status != tt.status || p.Type == "" || p.Title == "" || p.Detail == "" {
+				t.Errorf("incomplete problem %+v", p)
+			}
+			got := map[string]bool{}
+			for _, e := range p.Errors {
+				got[e.Parameter] = true
+			}
+			for _, name := range tt.params {
+				if !got[name] {
+					t.Errorf("problem does not name %q: %+v", name, p.Errors)
+				}
+			}
+		})
+	}
+}
