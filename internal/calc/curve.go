@@ -165,8 +165,9 @@ type LogPolynomialAlpha struct {
 	Lo, Hi units.Temperature
 	// table of the integral of alpha at the nodes of a fixed grid over
 	// [Lo, Hi], filled once by NewLogPolynomialAlpha.
-	grid  []float64
-	integ []float64
+	grid     []float64
+	integ    []float64
+	refInteg float64 // the integral from Lo to Ref
 }
 
 // Alpha returns the instantaneous coefficient at t, per kelvin.
@@ -192,6 +193,7 @@ func NewLogPolynomialAlpha(coef []float64, unit float64, ref, lo, hi units.Tempe
 			a.integ[i] = a.integ[i-1] + a.gauss(a.grid[i-1], a.grid[i])
 		}
 	}
+	a.refInteg = a.integral(ref)
 	return a
 }
 
@@ -223,7 +225,7 @@ func (a *LogPolynomialAlpha) integral(t units.Temperature) float64 {
 
 // Strain returns the strain from the reference temperature.
 func (a *LogPolynomialAlpha) Strain(t units.Temperature) float64 {
-	return math.Expm1(a.integral(t) - a.integral(a.Ref))
+	return math.Expm1(a.integral(t) - a.refInteg)
 }
 
 // Range returns the fit's validity range.

@@ -8,6 +8,7 @@ import (
 	"runtime/debug"
 	"strconv"
 	"strings"
+	"sync"
 	"sync/atomic"
 	"time"
 
@@ -120,6 +121,19 @@ type metrics struct {
 	duration *prometheus.HistogramVec
 	calcErrs *prometheus.CounterVec
 	idPrefix string
+	// bound caches the label-bound collectors per method, route and code,
+	// so that a request costs no label lookup.
+	bound sync.Map // boundKey -> boundMetrics
+}
+
+type boundKey struct {
+	method, route string
+	code          int
+}
+
+type boundMetrics struct {
+	requests prometheus.Counter
+	duration prometheus.Observer
 }
 
 func newMetrics(reg prometheus.Registerer, opts Options, materialsVersion string) (*metrics, error) {
@@ -153,9 +167,23 @@ func newMetrics(reg prometheus.Registerer, opts Options, materialsVersion string
 }
 
 func (m *metrics) observe(method, route string, status int, d time.Duration) {
-	code := strconv.Itoa(status)
-	m.requests.WithLabelValues(method, route, code).Inc()
-	m.duration.WithLabelValues(method, route, code).Observe(d.Seconds())
+	switch method {
+	case "GET", "POST", "HEAD", "PUT", "DELETE", "PATCH", "OPTIONS":
+	default:
+		method = "other" // a client's invented method must not make a series
+	}
+	k := boundKey{method, route, status}
+	b, ok := m.bound.Load(k)
+	if !ok {
+		code := strconv.Itoa(status)
+		b, _ = m.bound.LoadOrStore(k, boundMetrics{
+			requests: m.requests.WithLabelValues(method, route, code),
+			duration: m.duration.WithLabelValues(method, route, code),
+		})
+	}
+	bm := b.(boundMetrics)
+	bm.requests.Inc()
+	bm.duration.Observe(d.Seconds())
 }
 
 func (m *metrics) calcError(calculation string, err error) {

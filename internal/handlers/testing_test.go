@@ -46,12 +46,15 @@ func do(t testing.TB, h http.Handler, method, target, contentType, body string) 
 
 // decoded is a calculation response read back generically.
 type decoded struct {
-	Results    map[string]struct{ Value float64; Unit string } `json:"results"`
-	Inputs     map[string]map[string]any                      `json:"inputs"`
-	Method     string                                         `json:"method"`
-	References []string                                       `json:"references"`
-	Warnings   []string                                       `json:"warnings"`
-	Cautions   []string                                       `json:"cautions"`
+	Results map[string]struct {
+		Value float64
+		Unit  string
+	} `json:"results"`
+	Inputs     map[string]map[string]any `json:"inputs"`
+	Method     string                    `json:"method"`
+	References []string                  `json:"references"`
+	Warnings   []string                  `json:"warnings"`
+	Cautions   []string                  `json:"cautions"`
 }
 
 func decode(t testing.TB, w *httptest.ResponseRecorder) decoded {
