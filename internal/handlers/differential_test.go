@@ -1,0 +1,251 @@
+package handlers
+
+import (
+	"math"
+	"strings"
+	"testing"
+)
+
+func TestDifferentialHTTP(t *testing.T) {
+	r := newTestHandler(t).Router()
+	tests := []struct {
+		name   string
+		query  string
+		result string
+		want   float64
+		unit   string
+	}{
+		// Demo data: an aluminium mullion on the concrete frame of a demo office
+		// facade. Coefficients of EN 1991-1-5 Table C.1 (aluminium 24e-6/K,
+		// concrete 10e-6/K; from memory, not re-read):
+		// 6 m x (24e-6 x 45 K - 10e-6 x 15 K) = 5.58 mm.
+		{"mullion on frame", q("length", "6 m", "alpha_a", "24e-6/K", "alpha_b", "10e-6/K", "delta_t_a", "45 K", "delta_t_b", "15 K"), "differential_movement", 5.58, "mm"},
+		// Same coefficients, one change of 30 K: 6 m x 14e-6 x 30 K = 2.52 mm.
+		{"one delta_t", q("length", "6 m", "alpha_a", "24e-6/K", "alpha_b", "10e-6/K", "delta_t", "30 K"), "differential_movement", 2.52, "mm"},
+		// Absolute temperatures: 10 degC to 40 degC is the same 30 K.
+		{"absolute", q("length", "6 m", "alpha_a", "24e-6/K", "alpha_b", "10e-6/K", "t_initial", "10 degC", "t_final", "40 degC"), "differential_movement", 2.52, "mm"},
+		// Timoshenko (1925) equal layers: 3 (a2 - a1) dT / (2 h) [read]:
+		// 3 x 17e-6 x 50 / (2 x 1e-3 m) = 1.275 1/m.
+		{"equal layers curvature", q("length", "60 mm", "alpha_a", "18.5e-6/K", "alpha_b", "1.5e-6/K", "delta_t", "50 K", "thickness_a", "0.5 mm", "thickness_b", "0.5 mm", "modulus_a", "170 GPa", "modulus_b", "170 GPa"), "curvature", 1.275, "1/m"},
+		// ASTM B106 flexivity t (1/R2 - 1/R1)/(T2 - T1) [read] for equal layers
+		// with Timoshenko's reduction: 3 (a2 - a1) / 2 = 2.55e-5 1/K.
+		{"equal layers flexivity", q("length", "60 mm", "alpha_a", "18.5e-6/K", "alpha_b", "1.5e-6/K", "delta_t", "50 K", "thickness_a", "0.5 mm", "thickness_b", "0.5 mm", "modulus_a", "170 GPa", "modulus_b", "170 GPa"), "flexivity", 2.55e-5, "1/K"},
+		// Circle geometry: tip of a 60 mm cantilever on radius 1/1.275 m is
+		// 2 sin^2(kappa L / 2) / kappa.
+		{"tip deflection", q("length", "60 mm", "alpha_a", "18.5e-6/K", "alpha_b", "1.5e-6/K", "delta_t", "50 K", "thickness_a", "0.5 mm", "thickness_b", "0.5 mm", "modulus_a", "170 GPa", "modulus_b", "170 GPa", "span", "60 mm"), "tip_deflection", 2 * math.Pow(math.Sin(1.275*0.06/2), 2) / 1.275 * 1e3, "mm"},
+		{"midspan deflection", q("length", "60 mm", "alpha_a", "18.5e-6/K", "alpha_b", "1.5e-6/K", "delta_t", "50 K", "thickness_a", "0.5 mm", "thickness_b", "0.5 mm", "modulus_a", "170 GPa", "modulus_b", "170 GPa", "span", "60 mm"), "midspan_deflection", 2 * math.Pow(math.Sin(1.275*0.06/4), 2) / 1.275 * 1e3, "mm"},
+		// Stoney (1909) biaxial [read]: a 1 um film, 525 um substrate of
+		// E = 130 GPa, nu = 0.28, measured curvature 0.02 1/m with the film
+		// concave (film a, so curvature -0.02 in this service's sign):
+		// 130e9 x 525e-6^2 x 0.02 / (6 x 1e-6 x 0.72) = 165.885 MPa tension.
+		{"stoney from curvature", q("length", "100 mm", "alpha_a", "3e-6/K", "alpha_b", "2.6e-6/K", "delta_t", "1 K", "thickness_a", "1 um", "thickness_b", "525 um", "modulus_a", "70 GPa", "modulus_b", "130 GPa", "film", "a", "poisson_a", "0.2", "poisson_b", "0.28", "measured_curvature", "-0.02 1/m"), "film_stress_from_curvature", 130e9 * 525e-6 * 525e-6 * 0.02 / (6 * 1e-6 * 0.72) / 1e6, "MPa"},
+		// Biaxial Hooke's law (Timoshenko and Goodier, from memory): film a
+		// grows 0.4e-6 x 100 K more than b: sigma = -70e9/(1 - 0.2) x 4e-5 = -3.5 MPa.
+		{"film stress", q("length", "100 mm", "alpha_a", "3e-6/K", "alpha_b", "2.6e-6/K", "delta_t", "100 K", "thickness_a", "1 um", "thickness_b", "525 um", "modulus_a", "70 GPa", "modulus_b", "130 GPa", "film", "a", "poisson_a", "0.2", "poisson_b", "0.28"), "film_stress", -3.5, "MPa"},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			d := decode(t, do(t, r, "GET", "/v1/differential?"+tt.query, "", ""))
+			got := d.Results[tt.result]
+			if !closeTo(got.Value, tt.want, 1e-9) || got.Unit != tt.unit {
+				t.Errorf("%s = %v %s, want %v %s", tt.result, got.Value, got.Unit, tt.want, tt.unit)
+			}
+			if len(d.Cautions) < 4 || d.Method == "" || len(d.References) == 0 {
+				t.Errorf("response lacks method, references or cautions: %+v", d)
+			}
+		})
+	}
+}
+
+func TestDifferentialSwapLayers(t *testing.T) {
+	// Swapping a and b describes the same strip: every signed result flips
+	// (Timoshenko 1925: the formula is symmetric in the layers).
+	r := newTestHandler(t).Router()
+	ab := decode(t, do(t, r, "GET", "/v1/differential?"+q("length", "1 m", "material_a", "aluminium-6061", "material_b", "structural-steel", "delta_t", "60 K", "thickness_a", "3 mm", "thickness_b", "5 mm", "span", "1 m"), "", ""))
+	ba := decode(t, do(t, r, "GET", "/v1/differential?"+q("length", "1 m", "material_a", "structural-steel", "material_b", "aluminium-6061", "delta_t", "60 K", "thickness_a", "5 mm", "thickness_b", "3 mm", "span", "1 m"), "", ""))
+	for _, name := range []string{"differential_movement", "curvature", "tip_deflection", "midspan_deflection", "flexivity"} {
+		if x, y := ab.Results[name].Value, ba.Results[name].Value; x == 0 || !closeTo(-y, x, 1e-12) {
+			t.Errorf("%s: a/b %v, b/a %v; want opposite", name, x, y)
+		}
+	}
+	if x, y := ab.Results["stress_a_interface"].Value, ba.Results["stress_b_interface"].Value; !closeTo(y, x, 1e-12) {
+		t.Errorf("interface stress of aluminium: %v and %v; want equal", x, y)
+	}
+	// The catalogue moduli were used and said so.
+	if from, _ := ab.Inputs["modulus_a"]["from"].(string); !strings.Contains(from, "aluminium-6061") {
+		t.Errorf("modulus_a from %q, want the catalogue entry", from)
+	}
+}
+
+func TestDifferentialProperties(t *testing.T) {
+	r := newTestHandler(t).Router()
+	base := []string{"length", "1 m", "alpha_a", "23e-6/K", "alpha_b", "12e-6/K", "thickness_a", "2 mm", "thickness_b", "4 mm", "modulus_a", "70 GPa", "modulus_b", "210 GPa"}
+	one := decode(t, do(t, r, "GET", "/v1/differential?"+q(append(base, "delta_t", "20 K")...), "", ""))
+	two := decode(t, do(t, r, "GET", "/v1/differential?"+q(append(base, "delta_t", "40 K")...), "", ""))
+	// Doubling the temperature change doubles the curvature (linear theory;
+	// common practice, no published source).
+	if c1, c2 := one.Results["curvature"].Value, two.Results["curvature"].Value; c1 == 0 || !closeTo(c2, 2*c1, 1e-12) {
+		t.Errorf("curvature %v at 20 K, %v at 40 K; want double", c1, c2)
+	}
+	// Zero mismatch: no curvature, no radius (it would be infinite), a warning.
+	z := decode(t, do(t, r, "GET", "/v1/differential?"+q("length", "1 m", "alpha_a", "12e-6/K", "alpha_b", "12e-6/K", "thickness_a", "2 mm", "thickness_b", "4 mm", "modulus_a", "70 GPa", "modulus_b", "210 GPa", "delta_t", "20 K"), "", ""))
+	if c := z.Results["curvature"].Value; c != 0 {
+		t.Errorf("zero mismatch curvature = %v, want 0", c)
+	}
+	if _, ok := z.Results["radius"]; ok || len(z.Warnings) == 0 {
+		t.Errorf("zero mismatch: radius %v, warnings %v; want no radius and a warning", z.Results["radius"], z.Warnings)
+	}
+}
+
+func TestRestraintHTTP(t *testing.T) {
+	r := newTestHandler(t).Router()
+	pipe := []string{"material", "structural-steel", "delta_t", "40 K"}
+	tests := []struct {
+		name   string
+		query  string
+		result string
+		want   float64
+		unit   string
+	}{
+		// Hibbeler, Mechanics of Materials, thermal stress example (A-36 bar
+		// 0.5 in square between rigid supports, 60 degF to 120 degF,
+		// alpha 6.60e-6/degF, E = 29e3 ksi): sigma = 11.5 ksi compression,
+		// F = 2.87 kip. Values from memory of Hibbeler, not re-read;
+		// 29e6 x 6.6e-6 x 60 = 11484 psi exactly by the formula.
+		{"hibbeler stress", q("alpha", "6.60e-6 1/degF", "modulus", "29000 ksi", "t_initial", "60 degF", "t_final", "120 degF", "area", "0.25 in2", "units", "us"), "stress", -11484, "psi"},
+		{"hibbeler force", q("alpha", "6.60e-6 1/degF", "modulus", "29000 ksi", "t_initial", "60 degF", "t_final", "120 degF", "area", "0.25 in2", "units", "us"), "force", -2.871, "kip"},
+		// Catalogue steel (EN 1993-1-1 3.2.6: 12e-6/K, 210 GPa; alpha from
+		// memory): sigma = -210e9 x 12e-6 x 40 = -100.8 MPa.
+		{"catalogue steel", q(pipe...), "stress", -100.8, "MPa"},
+		// Half restraint halves it (property: linear in R).
+		{"half restraint", q(append(pipe, "restraint", "0.5")...), "stress", -50.4, "MPa"},
+		// Spring equal to the member's axial stiffness E A / L:
+		// 210e9 x 3600e-6 / 24 = 31.5e6 N/m gives R = 1/2 (springs in series).
+		{"spring restraint", q(append(pipe, "area", "3600 mm2", "length", "24 m", "support_stiffness", "31.5 kN/mm")...), "restraint", 0.5, "1"},
+		{"spring movement", q(append(pipe, "area", "3600 mm2", "length", "24 m", "support_stiffness", "31.5 kN/mm")...), "movement", 0.5 * 12e-6 * 40 * 24e3, "mm"},
+		// Euler, fully restrained pinned strut: dT_cr = pi^2 r^2 / (alpha L^2)
+		// [memory, any stability text]: r = 57 mm, L = 24 m, alpha = 12e-6/K.
+		{"critical delta_t", q(append(pipe, "length", "24 m", "radius_of_gyration", "57 mm", "end_condition", "pinned")...), "critical_delta_t", math.Pi * math.Pi * 0.057 * 0.057 / (12e-6 * 24 * 24), "K"},
+		// Cantilever K = 2 quarters it (Timoshenko and Gere, from memory).
+		{"cantilever", q(append(pipe, "length", "24 m", "radius_of_gyration", "57 mm", "end_condition", "cantilever")...), "critical_delta_t", math.Pi * math.Pi * 0.057 * 0.057 / (12e-6 * 48 * 48), "K"},
+		// From I and A: r = sqrt(I/A); P_cr = pi^2 E I / (K L)^2 with K = 0.5.
+		{"critical force", q(append(pipe, "length", "12 m", "area", "3600 mm2", "second_moment", "1170 cm4", "end_condition", "fixed")...), "critical_force", math.Pi * math.Pi * 210e9 * 1170e-8 / 36 / 1e3, "kN"},
+		// Gradient (Gere, from memory): kappa = alpha (dTtop - dTbottom)/depth =
+		// 10e-6 x 20 / 0.4 = 5e-4 1/m; fixed-fixed M = E I kappa =
+		// 33e9 x 2.1e-3 x 5e-4 = 34.65 kN m.
+		{"gradient curvature", q("alpha", "10e-6/K", "modulus", "33 GPa", "delta_t_top", "25 K", "delta_t_bottom", "5 K", "depth", "400 mm", "second_moment", "2.1e-3 m4"), "gradient_curvature", 5e-4, "1/m"},
+		{"gradient moment", q("alpha", "10e-6/K", "modulus", "33 GPa", "delta_t_top", "25 K", "delta_t_bottom", "5 K", "depth", "400 mm", "second_moment", "2.1e-3 m4"), "end_moment", 34.65, "kN*m"},
+		// The uniform part of the gradient is the mean, 15 K.
+		{"gradient uniform", q("alpha", "10e-6/K", "modulus", "33 GPa", "delta_t_top", "25 K", "delta_t_bottom", "5 K", "depth", "400 mm"), "stress", -33e9 * 10e-6 * 15 / 1e6, "MPa"},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			d := decode(t, do(t, r, "GET", "/v1/restraint?"+tt.query, "", ""))
+			got := d.Results[tt.result]
+			if !closeTo(got.Value, tt.want, 1e-9) || got.Unit != tt.unit {
+				t.Errorf("%s = %v %s, want %v %s", tt.result, got.Value, got.Unit, tt.want, tt.unit)
+			}
+			if len(d.Cautions) < 4 || d.Method == "" || len(d.References) == 0 {
+				t.Errorf("response lacks method, references or cautions: %+v", d)
+			}
+		})
+	}
+}
+
+func TestRestraintCautions(t *testing.T) {
+	r := newTestHandler(t).Router()
+	// A hot steel pipe, fully restrained: 210e9 x 12e-6 x 200 K = 504 MPa > 355 MPa
+	// (S355, EN 1993-1-1 Table 3.1, from memory): the yield warning.
+	d := decode(t, do(t, r, "GET", "/v1/restraint?"+q("material", "structural-steel", "delta_t", "200 K", "length", "24 m", "radius_of_gyration", "57 mm", "end_condition", "pinned"), "", ""))
+	if !anyContains(d.Warnings, "yield strength") {
+		t.Errorf("no yield warning: %v", d.Warnings)
+	}
+	if !anyContains(d.Cautions, "perfectly straight elastic strut") {
+		t.Errorf("no Euler caution: %v", d.Cautions)
+	}
+	if !anyContains(d.Cautions, "buckles") {
+		t.Errorf("200 K is beyond the critical rise, but no buckling caution: %v", d.Cautions)
+	}
+	if from, _ := d.Inputs["yield_strength"]["from"].(string); !strings.Contains(from, "structural-steel") {
+		t.Errorf("yield_strength from %q, want the catalogue", from)
+	}
+	// An explicit yield strength wins.
+	d = decode(t, do(t, r, "GET", "/v1/restraint?"+q("material", "structural-steel", "delta_t", "200 K", "yield_strength", "600 MPa"), "", ""))
+	if anyContains(d.Warnings, "yield strength") {
+		t.Errorf("yield warning with fy = 600 MPa > 504 MPa: %v", d.Warnings)
+	}
+}
+
+func anyContains(list []string, s string) bool {
+	for _, x := range list {
+		if strings.Contains(x, s) {
+			return true
+		}
+	}
+	return false
+}
+
+func TestDifferentialRestraintErrors(t *testing.T) {
+	r := newTestHandler(t).Router()
+	layers := []string{"length", "1 m", "alpha_a", "23e-6/K", "alpha_b", "12e-6/K", "delta_t", "20 K"}
+	tests := []struct {
+		name, target string
+		status       int
+		params       []string
+	}{
+		{"negative thickness", "/v1/differential?" + q(append(layers, "thickness_a", "-2 mm", "thickness_b", "4 mm", "modulus_a", "70 GPa", "modulus_b", "210 GPa")...), 422, []string{"thickness_a"}},
+		{"zero thickness", "/v1/differential?" + q(append(layers, "thickness_a", "2 mm", "thickness_b", "0 mm", "modulus_a", "70 GPa", "modulus_b", "210 GPa")...), 422, []string{"thickness_b"}},
+		{"zero modulus", "/v1/differential?" + q(append(layers, "thickness_a", "2 mm", "thickness_b", "4 mm", "modulus_a", "0 GPa", "modulus_b", "210 GPa")...), 422, []string{"modulus_a"}},
+		{"negative modulus", "/v1/restraint?" + q("alpha", "12e-6/K", "modulus", "-210 GPa", "delta_t", "10 K"), 422, []string{"modulus"}},
+		{"thickness wrong dimension", "/v1/differential?" + q(append(layers, "thickness_a", "2 kg", "thickness_b", "4 mm", "modulus_a", "70 GPa", "modulus_b", "210 GPa")...), 400, []string{"thickness_a"}},
+		{"modulus wrong dimension", "/v1/differential?" + q(append(layers, "thickness_a", "2 mm", "thickness_b", "4 mm", "modulus_a", "70 m", "modulus_b", "210 GPa")...), 400, []string{"modulus_a"}},
+		{"modulus missing", "/v1/differential?" + q(append(layers, "thickness_a", "2 mm", "thickness_b", "4 mm", "modulus_a", "70 GPa")...), 400, []string{"modulus_b"}},
+		{"one thickness", "/v1/differential?" + q(append(layers, "thickness_a", "2 mm", "modulus_a", "70 GPa", "modulus_b", "210 GPa")...), 400, []string{"thickness_b"}},
+		{"modulus without layers", "/v1/differential?" + q(append(layers, "modulus_a", "70 GPa")...), 400, []string{"modulus_a"}},
+		{"delta_t_a alone", "/v1/differential?" + q("length", "1 m", "alpha_a", "23e-6/K", "alpha_b", "12e-6/K", "delta_t_a", "20 K"), 400, []string{"delta_t_b"}},
+		{"delta_t and delta_t_a", "/v1/differential?" + q("length", "1 m", "alpha_a", "23e-6/K", "alpha_b", "12e-6/K", "delta_t", "20 K", "delta_t_a", "20 K", "delta_t_b", "5 K"), 422, []string{"delta_t"}},
+		{"bad poisson", "/v1/differential?" + q(append(layers, "thickness_a", "2 um", "thickness_b", "4 mm", "modulus_a", "70 GPa", "modulus_b", "210 GPa", "film", "a", "poisson_a", "0.7", "poisson_b", "0.3")...), 422, []string{"poisson_a"}},
+		{"unknown film", "/v1/differential?" + q(append(layers, "thickness_a", "2 um", "thickness_b", "4 mm", "modulus_a", "70 GPa", "modulus_b", "210 GPa", "film", "c")...), 400, []string{"film"}},
+		{"unknown material_b", "/v1/differential?" + q("length", "1 m", "alpha_a", "23e-6/K", "material_b", "unobtainium", "delta_t", "20 K"), 404, []string{"material_b"}},
+		{"restraint above 1", "/v1/restraint?" + q("alpha", "12e-6/K", "modulus", "210 GPa", "delta_t", "10 K", "restraint", "1.5"), 422, []string{"restraint"}},
+		{"restraint below 0", "/v1/restraint?" + q("alpha", "12e-6/K", "modulus", "210 GPa", "delta_t", "10 K", "restraint", "-0.1"), 422, []string{"restraint"}},
+		{"restraint and spring", "/v1/restraint?" + q("alpha", "12e-6/K", "modulus", "210 GPa", "delta_t", "10 K", "restraint", "0.5", "support_stiffness", "10 kN/mm", "area", "1000 mm2", "length", "3 m"), 422, []string{"support_stiffness"}},
+		{"spring without area", "/v1/restraint?" + q("alpha", "12e-6/K", "modulus", "210 GPa", "delta_t", "10 K", "support_stiffness", "10 kN/mm", "length", "3 m"), 400, []string{"area"}},
+		{"spring wrong dimension", "/v1/restraint?" + q("alpha", "12e-6/K", "modulus", "210 GPa", "delta_t", "10 K", "support_stiffness", "10 kN", "area", "1000 mm2", "length", "3 m"), 400, []string{"support_stiffness"}},
+		{"unknown end condition", "/v1/restraint?" + q("alpha", "12e-6/K", "modulus", "210 GPa", "delta_t", "10 K", "length", "3 m", "radius_of_gyration", "20 mm", "end_condition", "hinged"), 400, []string{"end_condition"}},
+		{"buckling without length", "/v1/restraint?" + q("alpha", "12e-6/K", "modulus", "210 GPa", "delta_t", "10 K", "radius_of_gyration", "20 mm", "end_condition", "pinned"), 400, []string{"length"}},
+		{"second_moment without area", "/v1/restraint?" + q("alpha", "12e-6/K", "modulus", "210 GPa", "delta_t", "10 K", "length", "3 m", "second_moment", "100 cm4", "end_condition", "pinned"), 400, []string{"area"}},
+		{"second_moment wrong dimension", "/v1/restraint?" + q("alpha", "12e-6/K", "modulus", "210 GPa", "delta_t", "10 K", "length", "3 m", "area", "10 cm2", "second_moment", "100 cm2", "end_condition", "pinned"), 400, []string{"second_moment"}},
+		{"gradient without depth", "/v1/restraint?" + q("alpha", "12e-6/K", "modulus", "210 GPa", "delta_t_top", "10 K", "delta_t_bottom", "0 K"), 400, []string{"depth"}},
+		{"gradient and delta_t", "/v1/restraint?" + q("alpha", "12e-6/K", "modulus", "210 GPa", "delta_t", "5 K", "delta_t_top", "10 K", "delta_t_bottom", "0 K", "depth", "300 mm"), 422, []string{"delta_t"}},
+		{"modulus missing", "/v1/restraint?" + q("alpha", "12e-6/K", "delta_t", "10 K"), 400, []string{"modulus"}},
+		{"liquid", "/v1/restraint?" + q("material", "water", "delta_t", "10 K"), 422, []string{"material"}},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			w := do(t, r, "GET", tt.target, "", "")
+			if w.Code != tt.status {
+				t.Fatalf("status %d, want %d: %s", w.Code, tt.status, w.Body.String())
+			}
+			p := decodeProblem(t, w)
+			got := map[string]bool{}
+			for _, e := range p.Errors {
+				got[e.Parameter] = true
+			}
+			for _, name := range tt.params {
+				if !got[name] {
+					t.Errorf("problem does not name %q: %+v", name, p.Errors)
+				}
+			}
+		})
+	}
+}
+
+func TestDifferentialPOSTEqualsGET(t *testing.T) {
+	r := newTestHandler(t).Router()
+	get := do(t, r, "GET", "/v1/restraint?"+q("alpha", "12e-6/K", "modulus", "210 GPa", "delta_t", "40 K", "restraint", "0.8"), "", "")
+	post := do(t, r, "POST", "/v1/restraint", "application/json", `{"alpha": "12e-6/K", "modulus": {"value": 210, "unit": "GPa"}, "delta_t": "40 K", "restraint": 0.8}`)
+	if g, p := decode(t, get).Results["stress"], decode(t, post).Results["stress"]; g != p || !closeTo(g.Value, -0.8*210e3*12e-6*40, 1e-12) {
+		t.Errorf("GET stress %v, POST %v", g, p)
+	}
+}
