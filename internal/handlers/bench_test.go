@@ -1,0 +1,265 @@
+package handlers
+
+import (
+	"bytes"
+	"encoding/json"
+	"io"
+	"net/http"
+	"net/http/httptest"
+	"net/url"
+	"reflect"
+	"testing"
+
+	"github.com/gin-gonic/gin"
+	"github.com/prometheus/client_golang/prometheus"
+	"go.uber.org/zap"
+	"go.uber.org/zap/zapcore"
+
+	"github.com/thermalmovement/service/internal/materials"
+)
+
+// Benchmarks of the full handler path through gin (issue 7): middleware,
+// parameter reading, the calculation, unit conversion, encoding, the
+// request log line (JSON, to io.Discard, as cmd/api writes it) and the
+// metrics. Inputs are the demo scenarios of the endpoints' descriptions
+// (demo data): a 48 m footbridge girder, a 2.4 m x 1.2 m aluminium facade
+// panel, a 2.5 m3 steel heat-exchanger shell filled with water.
+
+var benchQueries = map[string]string{
+	"linear": "length=48%20m&alpha=12e-6/K&delta_t=50%20K",
+	"area":   "length=2.4%20m&width=1.2%20m&alpha=23e-6/K&t_initial=20%20degC&t_final=70%20degC",
+	"volume": "volume=2.5%20m3&material=water&t_initial=10%20degC&t_final=80%20degC&vessel_material=structural-steel",
+}
+
+var benchBodies = map[string]string{
+	"linear": `{"length": "48 m", "alpha": "12e-6/K", "delta_t": {"value": 50, "unit": "K"}}`,
+	"area":   `{"length": "2.4 m", "width": "1.2 m", "alpha": "23e-6/K", "t_initial": "20 degC", "t_final": "70 degC"}`,
+	"volume": `{"volume": "2.5 m3", "material": "water", "t_initial": "10 degC", "t_final": "80 degC", "vessel_material": "structural-steel"}`,
+}
+
+// benchHandler returns handlers set up as cmd/api sets them up: a JSON
+// zap logger at info level (here writing to io.Discard) and a fresh
+// registry.
+func benchHandler(tb testing.TB) *Handler {
+	tb.Helper()
+	cat, err := materials.Load()
+	if err != nil {
+		tb.Fatal(err)
+	}
+	enc := zapcore.NewJSONEncoder(zap.NewProductionEncoderConfig())
+	log := zap.New(zapcore.NewCore(enc, zapcore.Lock(zapcore.AddSync(io.Discard)), zapcore.InfoLevel))
+	h, err := New(log, prometheus.NewRegistry(), cat, Options{Version: "bench", MaxBodyBytes: 64 << 10})
+	if err != nil {
+		tb.Fatal(err)
+	}
+	return h
+}
+
+// benchWriter is a reusable http.ResponseWriter that keeps nothing of the
+// body, so that the benchmark counts the handler's allocations rather
+// than a recorder's.
+type benchWriter struct {
+	h      http.Header
+	status int
+	n      int
+}
+
+func (w *benchWriter) Header() http.Header { return w.h }
+func (w *benchWriter) WriteHeader(s int)   { w.status = s }
+func (w *benchWriter) Write(b []byte) (int, error) {
+	if w.status == 0 {
+		w.status = http.StatusOK
+	}
+	w.n += len(b)
+	return len(b), nil
+}
+
+func (w *benchWriter) reset() {
+	clear(w.h)
+	w.status, w.n = 0, 0
+}
+
+// benchCheck serves req once through httptest and fails unless it is a 200.
+func benchCheck(b *testing.B, r *gin.Engine, req *http.Request, body string) {
+	b.Helper()
+	if body != "" {
+		req.Body = io.NopCloser(bytes.NewReader([]byte(body)))
+	}
+	rec := httptest.NewRecorder()
+	r.ServeHTTP(rec, req)
+	if rec.Code != http.StatusOK {
+		b.Fatalf("%s %s = %d, want 200: %s", req.Method, req.URL, rec.Code, rec.Body)
+	}
+}
+
+func BenchmarkHandlerGET(b *testing.B) {
+	r := benchHandler(b).Router()
+	for _, name := range []string{"linear", "area", "volume"} {
+		for _, format := range []string{"json", "text", "csv", "xml"} {
+			b.Run(name+"/"+format, func(b *testing.B) {
+				q := benchQueries[name]
+				if format != "json" {
+					q += "&format=" + format
+				}
+				req := httptest.NewRequest(http.MethodGet, "/v1/expansion/"+name+"?"+q, nil)
+				benchCheck(b, r, req, "")
+				w := &benchWriter{h: http.Header{}}
+				b.ReportAllocs()
+				for b.Loop() {
+					w.reset()
+					r.ServeHTTP(w, req)
+				}
+				if w.status != http.StatusOK {
+					b.Fatalf("status %d", w.status)
+				}
+				b.SetBytes(int64(w.n))
+			})
+		}
+	}
+}
+
+func BenchmarkHandlerPOST(b *testing.B) {
+	r := benchHandler(b).Router()
+	for _, name := range []string{"linear", "area", "volume"} {
+		b.Run(name, func(b *testing.B) {
+			body := []byte(benchBodies[name])
+			req := httptest.NewRequest(http.MethodPost, "/v1/expansion/"+name, nil)
+			req.Header.Set("Content-Type", "application/json")
+			benchCheck(b, r, req, benchBodies[name])
+			w := &benchWriter{h: http.Header{}}
+			rd := bytes.NewReader(body)
+			rc := io.NopCloser(rd)
+			b.ReportAllocs()
+			for b.Loop() {
+				w.reset()
+				rd.Reset(body)
+				req.Body = rc
+				r.ServeHTTP(w, req)
+			}
+			if w.status != http.StatusOK {
+				b.Fatalf("status %d", w.status)
+			}
+		})
+	}
+}
+
+// benchResponse computes the linear demo response once, converted to its
+// output units, as the wrapper has it just before writing.
+func benchResponse(b *testing.B) (*Response, []resultItem) {
+	b.Helper()
+	h := benchHandler(b)
+	q, err := url.ParseQuery(benchQueries["linear"])
+	if err != nil {
+		b.Fatal(err)
+	}
+	vals := map[string]raw{}
+	if errs := readQuery(q, vals); len(errs) > 0 {
+		b.Fatal(errs)
+	}
+	p := newParams(vals, h.cat)
+	out := readOutput(p, fieldsOf(reflect.TypeOf((*LinearResults)(nil))))
+	resp, err := h.linear(p)
+	if err != nil {
+		b.Fatal(err)
+	}
+	items, ok := out.convert(resp.Results)
+	if !ok {
+		b.Fatal("results not finite")
+	}
+	h.complete(resp, "expansion/linear", p)
+	return resp, items
+}
+
+// BenchmarkEncode measures the response encoder alone, per format.
+func BenchmarkEncode(b *testing.B) {
+	resp, items := benchResponse(b)
+	b.Run("json", func(b *testing.B) {
+		b.ReportAllocs()
+		for b.Loop() {
+			if _, err := json.Marshal(resp); err != nil {
+				b.Fatal(err)
+			}
+		}
+	})
+	b.Run("inputs-json", func(b *testing.B) {
+		b.ReportAllocs()
+		for b.Loop() {
+			if _, err := resp.Inputs.MarshalJSON(); err != nil {
+				b.Fatal(err)
+			}
+		}
+	})
+	b.Run("text", func(b *testing.B) {
+		b.ReportAllocs()
+		for b.Loop() {
+			_ = textBody(items, "")
+		}
+	})
+	b.Run("csv", func(b *testing.B) {
+		b.ReportAllocs()
+		for b.Loop() {
+			_ = csvBody(items)
+		}
+	})
+	b.Run("xml", func(b *testing.B) {
+		b.ReportAllocs()
+		for b.Loop() {
+			_ = xmlBody(resp.Calculation, items, resp.Warnings)
+		}
+	})
+}
+
+// BenchmarkStages splits the linear GET into its stages, to show where a
+// request's time and allocations go.
+func BenchmarkStages(b *testing.B) {
+	h := benchHandler(b)
+	rawQuery := benchQueries["linear"]
+	b.Run("url.ParseQuery", func(b *testing.B) {
+		b.ReportAllocs()
+		for b.Loop() {
+			if _, err := url.ParseQuery(rawQuery); err != nil {
+				b.Fatal(err)
+			}
+		}
+	})
+	q, _ := url.ParseQuery(rawQuery)
+	b.Run("readQuery", func(b *testing.B) {
+		b.ReportAllocs()
+		for b.Loop() {
+			vals := make(map[string]raw, 8)
+			_ = readQuery(q, vals)
+		}
+	})
+	fields := fieldsOf(reflect.TypeOf((*LinearResults)(nil)))
+	b.Run("params+linear+convert", func(b *testing.B) {
+		b.ReportAllocs()
+		for b.Loop() {
+			vals := make(map[string]raw, 8)
+			_ = readQuery(q, vals)
+			p := newParams(vals, h.cat)
+			out := readOutput(p, fields)
+			resp, err := h.linear(p)
+			if err != nil {
+				b.Fatal(err)
+			}
+			if _, ok := out.convert(resp.Results); !ok {
+				b.Fatal("not finite")
+			}
+		}
+	})
+	b.Run("metrics.observe", func(b *testing.B) {
+		b.ReportAllocs()
+		for b.Loop() {
+			h.metrics.observe(http.MethodGet, "/v1/expansion/linear", http.StatusOK, 1000)
+		}
+	})
+	b.Run("log-line", func(b *testing.B) {
+		b.ReportAllocs()
+		for b.Loop() {
+			if ce := h.log.Check(zapcore.InfoLevel, "request"); ce != nil {
+				ce.Write(zap.String("method", "GET"), zap.String("route", "/v1/expansion/linear"), zap.Int("status", 200),
+					zap.Duration("duration", 1000), zap.Int("bytes", 1200), zap.String("request_id", "0123456789ab-1"))
+			}
+		}
+	})
+}
