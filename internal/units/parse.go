@@ -368,21 +368,35 @@ func isSymbolByte(s string, i int) bool {
 	case c >= 0x80:
 		// Superscript digits (² ³ ⁴) and the middle dot are operators or
 		// exponents, not part of a symbol.
-		return !strings.HasPrefix(s[i:], "²") && !strings.HasPrefix(s[i:], "³") &&
-			!strings.HasPrefix(s[i:], "⁴") && !strings.HasPrefix(s[i:], "·")
+		return superscript(s[i:]) == 0 && !strings.HasPrefix(s[i:], "·")
 	}
 	return false
+}
+
+// superscript returns the exponent of a leading superscript ², ³ or ⁴, or 0.
+func superscript(s string) int8 {
+	switch {
+	case strings.HasPrefix(s, "²"):
+		return 2
+	case strings.HasPrefix(s, "³"):
+		return 3
+	case strings.HasPrefix(s, "⁴"):
+		return 4
+	}
+	return 0
 }
 
 func (p *unitParser) exponent() (int8, error) {
 	if p.i >= len(p.s) {
 		return 1, nil
 	}
-	for sup, n := range map[string]int8{"²": 2, "³": 3, "⁴": 4} {
-		if strings.HasPrefix(p.s[p.i:], sup) {
-			p.i += len(sup)
-			return n, nil
+	if n := superscript(p.s[p.i:]); n != 0 {
+		if n == 4 {
+			p.i += len("⁴")
+		} else {
+			p.i += len("²") // ² and ³ are two bytes in UTF-8, ⁴ three
 		}
+		return n, nil
 	}
 	neg := false
 	start := p.i

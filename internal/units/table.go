@@ -114,15 +114,18 @@ var hints = map[string]string{
 	"metre":  `write "m"`,
 }
 
+// prefixOrder lists the prefixes for lookup, longest spelling first.
+var prefixOrder = []string{"µ", "μ", "n", "u", "m", "c", "d", "k", "M", "G"}
+
 // lookup finds a symbol directly or as prefix plus prefixable symbol.
 func lookup(s string) (symbol, bool) {
 	if u, ok := table[s]; ok {
 		return u, true
 	}
-	for p, f := range prefixes {
+	for _, p := range prefixOrder {
 		if len(s) > len(p) && s[:len(p)] == p {
 			if u, ok := table[s[len(p):]]; ok && u.prefixable {
-				u.factor *= f
+				u.factor *= prefixes[p]
 				u.offset = 0
 				return u, true
 			}
