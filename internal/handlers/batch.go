@@ -1,4 +1,888 @@
 package handlers
 
-// batchRoutes lists POST /v1/batch/{calculation}.
-func (h *Handler) batchRoutes() []route { return nil }
+import (
+	"bufio"
+	"bytes"
+	"encoding/csv"
+	"encoding/json"
+	"errors"
+	"io"
+	"mime"
+	"net/http"
+	"reflect"
+	"sort"
+	"strconv"
+	"strings"
+	"unicode/utf8"
+
+	"github.com/gin-gonic/gin"
+	"go.uber.org/zap"
+
+	"github.com/thermalmovement/service/internal/units"
+)
+
+// Defaults of the batch limits when Options leaves them zero (the same as
+// the flags' defaults of cmd/api).
+const (
+	defaultBatchMaxRows  = 100000
+	defaultBatchMaxBytes = 32 << 20
+)
+
+const (
+	// batchHoldBack is how much output is held before the status line is
+	// sent. Up to then a limit reached is answered with a 413 problem;
+	// after it only in-band (see batch).
+	batchHoldBack = 64 << 10
+	// batchFlushRows is how often, in rows, output sent so far is pushed
+	// to the network.
+	batchFlushRows = 512
+	// batchStatusTrailer is the HTTP trailer that tells a program how the
+	// batch ended.
+	batchStatusTrailer = "Batch-Status"
+)
+
+// batchSpec is a calculation offered as a batch.
+type batchSpec struct {
+	calcSpec
+	fields []resultField
+}
+
+// batchRoutes lists POST /v1/batch/{calculation}: one route whose
+// wildcard names any calculation that has result numbers.
+func (h *Handler) batchRoutes() []route {
+	specs := map[string]batchSpec{}
+	for _, c := range h.calculations() {
+		fields := fieldsOf(reflect.TypeOf(c.results))
+		if len(fields) == 0 {
+			continue // only tables or charts: nothing to put in a row
+		}
+		specs[c.name] = batchSpec{calcSpec: c, fields: fields}
+	}
+	return []route{{http.MethodPost, "/v1/batch/*calculation", h.batch(specs)}}
+}
+
+// batch godoc
+//
+//	@Summary		Many cases of one calculation: CSV or a JSON array in, the same form out
+//	@Description	Runs the calculation named in the path (any calculation endpoint below /v1/, e.g. expansion/linear, expansion/area, expansion/volume) once per row, exactly as a single request would.
+//	@Description	In: text/csv with a header row of parameter names and one case a row (an empty cell leaves the parameter out; a UTF-8 byte-order mark is allowed), or application/json with an array of request objects (the members of a single POST).
+//	@Description	Parameters in the query string (other than the output options) apply to every row; a row that gives one too is an error of that row.
+//	@Description	Out: CSV or JSON as format= asks, else as Accept asks (text/csv or application/json), else the form of the body. Each row has every input column as sent, then every result column with its unit in the name (`delta_length [mm]`; units by units= and <result>_unit=, empty or null where a result is not computed for the row), then `warnings` and `error` (empty where the row computed). A JSON answer is an array of flat objects with exactly these keys, a table like the CSV. With a JSON body and a CSV answer the columns are the members of the first element.
+//	@Description	One bad row never fails the batch: its error column says what is wrong, in the words of the single request's problem detail.
+//	@Description	Limits: rows (--batch-max-rows, default 100000) and body bytes (--batch-max-bytes, default 32 MiB). The answer streams: rows are computed and sent as they are read, so memory stays flat. A limit reached before 64 KiB of answer is ready is a 413 problem; after that the status line has been sent, so the answer ends with one more row whose error begins "batch stopped after row N:" and whose other cells are empty, and the trailer Batch-Status says "stopped after row N: ..." (else "complete: N rows"). A body whose Content-Length is over the byte limit is refused with 413 at once.
+//	@Description	Demo example: three bays of a warehouse slab, `length,material,t_initial,t_final` / `30 m,concrete,15 degC,-10 degC` / ...
+//	@Tags			batch
+//	@Accept			text/csv,json
+//	@Produce		text/csv,json
+//	@Param			calculation	path		string	true	"the calculation, e.g. expansion/linear"
+//	@Param			format		query		string	false	"csv or json (default: as Accept asks, else the form of the body)"	Enums(csv, json)
+//	@Param			units		query		string	false	"si (default) or us"	Enums(si, us)
+//	@Param			body		body		string	true	"CSV with a header row of parameter names, or a JSON array of request objects"
+//	@Success		200			{string}	string	"the rows: inputs, results, warnings, error"
+//	@Failure		400			{object}	Problem
+//	@Failure		404			{object}	Problem
+//	@Failure		413			{object}	Problem
+//	@Failure		415			{object}	Problem
+//	@Router			/v1/batch/{calculation} [post]
+func (h *Handler) batch(specs map[string]batchSpec) gin.HandlerFunc {
+	names := make([]string, 0, len(specs))
+	for n := range specs {
+		names = append(names, n)
+	}
+	sort.Strings(names)
+	return func(c *gin.Context) {
+		name := strings.TrimPrefix(c.Param("calculation"), "/")
+		spec, ok := specs[name]
+		if !ok {
+			h.problem(c, nil, newError(errNotFound, "no batch calculation "+strconv.QuoteToASCII(name)+"; batches: "+strings.Join(names, ", ")))
+			return
+		}
+		run, err := h.newBatchRun(c, spec)
+		if err != nil {
+			h.problem(c, nil, err)
+			return
+		}
+		run.serve()
+	}
+}
+
+// batchRun is one batch request being served.
+type batchRun struct {
+	h       *Handler
+	c       *gin.Context
+	spec    batchSpec
+	out     *outputOptions
+	shared  map[string]raw // query parameters applied to every row
+	inCSV   bool
+	outCSV  bool
+	maxRows int
+	body    io.Reader
+	// maxBytes is the body limit.
+	maxBytes int64
+
+	sink *batchSink
+	bw   *bufio.Writer
+	w    batchWriter
+	rows int // rows read
+}
+
+// newBatchRun reads everything that decides the answer before a byte of
+// the body is read: the query, the content types and the limits.
+func (h *Handler) newBatchRun(c *gin.Context, spec batchSpec) (*batchRun, error) {
+	vals := make(map[string]raw, 8)
+	if errs := readQuery(c.Request.URL.Query(), vals); len(errs) > 0 {
+		return nil, newError(errInvalid, "invalid query string", errs...)
+	}
+	qp := newParams(vals, h.cat)
+	for _, n := range []string{"result", "on_error"} {
+		if qp.has(n) {
+			qp.take(n)
+			qp.invalid(n, "not used by a batch: every result is a column, and errors go in the error column")
+		}
+	}
+	out := readOutput(qp, spec.fields)
+	format := ""
+	if qp.has("format") {
+		switch out.format {
+		case "csv", "json":
+			format = out.format
+		default:
+			if f := vals["format"].str; f == "text" || f == "xml" {
+				qp.invalid("format", strconv.Quote(f)+": a batch answers csv or json")
+			}
+		}
+	}
+	if err := fieldsError(qp.errs); err != nil {
+		return nil, err
+	}
+	shared := map[string]raw{}
+	for k, v := range vals {
+		if !qp.used[k] && k != apiKeyParam {
+			shared[k] = v
+		}
+	}
+
+	inCSV, err := batchContentType(c.GetHeader("Content-Type"))
+	if err != nil {
+		return nil, err
+	}
+	outCSV := inCSV
+	switch format {
+	case "csv":
+		outCSV = true
+	case "json":
+		outCSV = false
+	default:
+		if a, ok := acceptedForm(c.GetHeader("Accept")); ok {
+			outCSV = a
+		}
+	}
+
+	maxRows, maxBytes := h.opts.BatchMaxRows, h.opts.BatchMaxBytes
+	if maxRows <= 0 {
+		maxRows = defaultBatchMaxRows
+	}
+	if maxBytes <= 0 {
+		maxBytes = defaultBatchMaxBytes
+	}
+	if c.Request.ContentLength > maxBytes {
+		return nil, newError(errTooLarge, "batch body of "+strconv.FormatInt(c.Request.ContentLength, 10)+" bytes is over the limit of "+strconv.FormatInt(maxBytes, 10)+" bytes; split it")
+	}
+	// Rows are read while the answer is written: HTTP/1 servers must be
+	// told, or they drain the body before the first byte is sent.
+	_ = http.NewResponseController(c.Writer).EnableFullDuplex()
+
+	out.format = "csv"
+	if !outCSV {
+		out.format = "json"
+	}
+	r := &batchRun{
+		h: h, c: c, spec: spec, out: out, shared: shared,
+		inCSV: inCSV, outCSV: outCSV, maxRows: maxRows,
+		body:     &limitedBody{r: c.Request.Body, left: maxBytes, limit: maxBytes},
+		maxBytes: maxBytes,
+	}
+	r.sink = &batchSink{c: c, contentType: contentTypes[out.format]}
+	r.bw = bufio.NewWriterSize(r.sink, batchHoldBack)
+	return r, nil
+}
+
+// batchContentType reports whether a batch body is CSV (else JSON).
+func batchContentType(ct string) (csvBody bool, err error) {
+	refuse := func() error {
+		return newError(errMediaType, "a batch body is text/csv (a header row of parameter names, one case a row) or application/json (an array of request objects), not "+strconv.QuoteToASCII(ct))
+	}
+	if ct == "" {
+		return false, refuse()
+	}
+	mt, ps, perr := mime.ParseMediaType(ct)
+	if perr != nil {
+		return false, refuse()
+	}
+	if cs, ok := ps["charset"]; ok && !strings.EqualFold(cs, "utf-8") {
+		return false, newError(errMediaType, "a batch body must be UTF-8, not "+strconv.QuoteToASCII(cs))
+	}
+	switch mt {
+	case "text/csv", "application/csv":
+		return true, nil
+	case "application/json":
+		return false, nil
+	}
+	return false, refuse()
+}
+
+// acceptedForm reads an Accept header: true for CSV, false for JSON, ok
+// false when it names neither (or both equally, or anything).
+func acceptedForm(accept string) (csvForm, ok bool) {
+	bestQ, best := -1.0, ""
+	for _, part := range strings.Split(accept, ",") {
+		mt, ps, err := mime.ParseMediaType(strings.TrimSpace(part))
+		if err != nil {
+			continue
+		}
+		q := 1.0
+		if s, has := ps["q"]; has {
+			if v, err := strconv.ParseFloat(s, 64); err == nil {
+				q = v
+			}
+		}
+		if (mt == "text/csv" || mt == "application/json") && q > bestQ && q > 0 {
+			bestQ, best = q, mt
+		}
+	}
+	if best == "" {
+		return false, false
+	}
+	return best == "text/csv", true
+}
+
+// limitedBody caps the body like http.MaxBytesReader, reporting the
+// overflow as a *bodyTooLarge.
+type limitedBody struct {
+	r     io.Reader
+	left  int64
+	limit int64
+}
+
+// bodyTooLarge is the error of a batch body over its limit.
+type bodyTooLarge struct{ limit int64 }
+
+func (e *bodyTooLarge) Error() string {
+	return "body over the limit of " + strconv.FormatInt(e.limit, 10) + " bytes; split the batch"
+}
+
+func (b *limitedBody) Read(p []byte) (int, error) {
+	if b.left <= 0 {
+		// One byte more tells a body of exactly the limit from a longer one.
+		var one [1]byte
+		n, err := b.r.Read(one[:])
+		if n > 0 {
+			return 0, &bodyTooLarge{b.limit}
+		}
+		return 0, err
+	}
+	if int64(len(p)) > b.left {
+		p = p[:b.left]
+	}
+	n, err := b.r.Read(p)
+	b.left -= int64(n)
+	return n, err
+}
+
+// batchSink sends the status line and headers on the first write.
+type batchSink struct {
+	c           *gin.Context
+	contentType string
+	committed   bool
+}
+
+func (s *batchSink) Write(b []byte) (int, error) {
+	if !s.committed {
+		s.committed = true
+		hd := s.c.Writer.Header()
+		hd.Set("Content-Type", s.contentType)
+		hd.Set("Cache-Control", "no-store")
+		hd.Set("Trailer", batchStatusTrailer)
+		s.c.Writer.WriteHeader(http.StatusOK)
+	}
+	return s.c.Writer.Write(b)
+}
+
+// batchRow is one case: its parameters in the order sent, and an error
+// found while reading it.
+type batchRow struct {
+	names []string
+	vals  map[string]raw
+	err   string
+}
+
+// batchReader yields rows; io.EOF ends them, and any other error stops
+// the batch (the body cannot be read on).
+type batchReader interface {
+	// columns are the input columns known before the first row (a CSV
+	// header); nil for JSON.
+	columns() []string
+	next() (*batchRow, error)
+}
+
+// batchWriter writes rows in one form.
+type batchWriter interface {
+	header(inputs []string, results []string) error
+	row(in *batchRow, res []resultItem, fields []resultField, warnings []string, errMsg string) error
+	stop(msg string) error
+	end() error
+}
+
+// stopError ends a batch early, with its reason.
+type stopError struct {
+	kind errKind
+	msg  string
+}
+
+func (e *stopError) Error() string { return e.msg }
+
+func (r *batchRun) serve() {
+	var rd batchReader
+	var err error
+	if r.inCSV {
+		rd, err = newCSVReader(r.body, r.shared, r.spec.fields)
+	} else {
+		rd, err = newJSONReader(r.body)
+	}
+	if err != nil {
+		r.h.problem(r.c, nil, err)
+		return
+	}
+	results := make([]string, len(r.spec.fields))
+	for i, f := range r.spec.fields {
+		results[i] = f.name + " [" + r.out.unitFor(f).Symbol + "]"
+	}
+	if r.outCSV {
+		r.w = newCSVRowWriter(r.bw)
+	} else {
+		jw := &jsonRowWriter{w: r.bw, results: results}
+		if r.inCSV {
+			jw.fixed = []string{}
+		}
+		r.w = jw
+	}
+
+	inputs := rd.columns()
+	first := true
+	for {
+		row, err := rd.next()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			r.finish(inputs, results, first, err)
+			return
+		}
+		r.rows++
+		if r.rows > r.maxRows {
+			r.finish(inputs, results, first, &stopError{errTooLarge, "over the limit of " + strconv.Itoa(r.maxRows) + " rows; split the batch"})
+			return
+		}
+		if first {
+			if inputs == nil && row.err == "" {
+				inputs = append([]string(nil), row.names...)
+			}
+			if err := r.w.header(inputs, results); err != nil {
+				return
+			}
+			first = false
+		}
+		items, warnings, msg := r.compute(row, inputs)
+		if err := r.w.row(row, items, r.spec.fields, warnings, msg); err != nil {
+			return // the client went away
+		}
+		if r.rows%batchFlushRows == 0 && r.sink.committed {
+			if r.flush() != nil {
+				return
+			}
+		}
+	}
+	r.finish(inputs, results, first, nil)
+}
+
+// finish ends the answer: normally, or stopped by err. A stop before the
+// status line was sent is a problem response; after it, a last row.
+func (r *batchRun) finish(inputs, results []string, noHeader bool, err error) {
+	var se *stopError
+	if err != nil && !errors.As(err, &se) {
+		se = &stopError{errInvalid, err.Error()}
+	}
+	if se != nil && !r.sink.committed {
+		r.bw.Reset(io.Discard)
+		r.h.problem(r.c, nil, newError(se.kind, "batch: "+se.msg))
+		return
+	}
+	if noHeader {
+		if r.w.header(inputs, results) != nil {
+			return
+		}
+	}
+	status := "complete: " + strconv.Itoa(r.rows) + " rows"
+	if se != nil {
+		done := r.rows
+		if se.kind == errTooLarge && done > r.maxRows {
+			done = r.maxRows
+		}
+		status = "stopped after row " + strconv.Itoa(done) + ": " + se.msg
+		if r.w.stop("batch "+status+"; the rows after it were not read") != nil {
+			return
+		}
+	}
+	if r.w.end() != nil {
+		return
+	}
+	if r.flush() != nil {
+		return
+	}
+	r.c.Writer.Header().Set(batchStatusTrailer, status)
+}
+
+func (r *batchRun) flush() error {
+	if err := r.bw.Flush(); err != nil {
+		return err
+	}
+	r.c.Writer.Flush()
+	return nil
+}
+
+// compute runs the calculation on one row, exactly as a single request
+// runs it, and returns its results in their output units.
+func (r *batchRun) compute(row *batchRow, columns []string) (items []resultItem, warnings []string, msg string) {
+	if row.err != "" {
+		return nil, nil, row.err
+	}
+	if len(row.names) == 0 {
+		return nil, nil, "empty row"
+	}
+	vals := make(map[string]raw, len(row.vals)+len(r.shared))
+	for _, n := range row.names {
+		if isOutput(n, r.spec.fields) {
+			return nil, nil, "parameter " + strconv.Quote(n) + ": output options go in the query string of the batch, for every row"
+		}
+		if _, dup := r.shared[n]; dup {
+			return nil, nil, "parameter " + strconv.Quote(n) + " given in both the query and the row"
+		}
+		vals[n] = row.vals[n]
+	}
+	if r.outCSV && !r.inCSV {
+		for _, n := range row.names {
+			if !contains(columns, n) {
+				return nil, nil, "parameter " + strconv.Quote(n) + " is not a member of the first element, whose members are the columns of a CSV answer"
+			}
+		}
+	}
+	for k, v := range r.shared {
+		vals[k] = v
+	}
+	p := newParams(vals, r.h.cat)
+	resp, err := r.call(p)
+	if err != nil {
+		return nil, nil, problemOf(err, "").Detail
+	}
+	items, ok := r.out.convert(resp.Results)
+	if !ok {
+		return nil, nil, "the inputs lead to a result that is not a finite number; check them for extreme values"
+	}
+	return items, resp.Warnings, ""
+}
+
+// isOutput reports whether a name is an output option: format, units,
+// result, on_error or the <result>_unit of one of fields.
+func isOutput(n string, fields []resultField) bool {
+	if !isControl(n) {
+		return false
+	}
+	if !strings.HasSuffix(n, "_unit") {
+		return true
+	}
+	return fieldByName(fields, strings.TrimSuffix(n, "_unit")) != nil
+}
+
+// call runs the calculation, turning a panic (a defect) into the error
+// of its row so that the other rows are still answered.
+func (r *batchRun) call(p *params) (resp *Response, err error) {
+	defer func() {
+		if v := recover(); v != nil {
+			r.h.log.Error("panic in batch row", zap.Any("panic", v), zap.String("calculation", r.spec.name),
+				zap.Int("row", r.rows), zap.String("request_id", r.c.Writer.Header().Get(requestIDHeader)))
+			resp, err = nil, errors.New("panic")
+		}
+	}()
+	resp, err = r.spec.fn(p)
+	if err == nil && (resp == nil || resp.Results == nil) {
+		err = errors.New("no results")
+	}
+	return resp, err
+}
+
+// csvReader reads a CSV batch: a header row of parameter names, then
+// one case a row.
+type csvReader struct {
+	r      *csv.Reader
+	header []string
+	line   int
+}
+
+func newCSVReader(body io.Reader, shared map[string]raw, fields []resultField) (*csvReader, error) {
+	r := csv.NewReader(body)
+	r.FieldsPerRecord = -1
+	r.ReuseRecord = true
+	rec, err := r.Read()
+	if err != nil {
+		return nil, readError(err, "the header row")
+	}
+	header := make([]string, len(rec))
+	var errs []FieldError
+	seen := map[string]bool{}
+	for i, h := range rec {
+		if i == 0 {
+			h = strings.TrimPrefix(h, "\ufeff")
+		}
+		h = strings.TrimSpace(h)
+		header[i] = h
+		col := "column " + strconv.Itoa(i+1)
+		switch {
+		case h == "":
+			errs = append(errs, FieldError{Parameter: col, Detail: "has no name; the header row names a parameter in every column"})
+		case !utf8.ValidString(h):
+			errs = append(errs, FieldError{Parameter: col, Detail: "name is not valid UTF-8"})
+		case seen[h]:
+			errs = append(errs, FieldError{Parameter: h, Detail: "names two columns"})
+		case isOutput(h, fields):
+			errs = append(errs, FieldError{Parameter: h, Detail: "an output option: give it in the query string of the batch, for every row"})
+		}
+		if _, dup := shared[h]; dup && h != "" {
+			errs = append(errs, FieldError{Parameter: h, Detail: "given in both the query and the header row"})
+		}
+		seen[h] = true
+	}
+	if len(errs) > 0 {
+		return nil, newError(errInvalid, "invalid CSV header row", errs...)
+	}
+	return &csvReader{r: r, header: header, line: 1}, nil
+}
+
+// readError turns an error reading the body before the answer started
+// into the error to answer.
+func readError(err error, what string) error {
+	var pe *csv.ParseError
+	var tl *bodyTooLarge
+	switch {
+	case errors.As(err, &tl):
+		return newError(errTooLarge, "batch: "+tl.Error())
+	case err == io.EOF:
+		return newError(errInvalid, "the body is empty: send "+what+" first")
+	case errors.As(err, &pe):
+		return newError(errInvalid, "CSV "+what+": "+pe.Err.Error())
+	}
+	return newError(errInvalid, "the body cannot be read")
+}
+
+func (r *csvReader) columns() []string { return r.header }
+
+func (r *csvReader) next() (*batchRow, error) {
+	rec, err := r.r.Read()
+	var pe *csv.ParseError
+	var tl *bodyTooLarge
+	switch {
+	case err == nil:
+	case err == io.EOF:
+		return nil, io.EOF
+	case errors.As(err, &tl):
+		return nil, &stopError{errTooLarge, tl.Error()}
+	case errors.As(err, &pe):
+		// The reader goes on at the next line; this row says what was wrong.
+		return &batchRow{err: "CSV line " + strconv.Itoa(pe.StartLine) + ": " + pe.Err.Error()}, nil
+	default:
+		return nil, &stopError{errInvalid, "the body cannot be read"}
+	}
+	row := &batchRow{vals: make(map[string]raw, len(rec))}
+	if len(rec) != len(r.header) {
+		row.err = "row has " + strconv.Itoa(len(rec)) + " fields, the header row " + strconv.Itoa(len(r.header))
+	}
+	for i, cell := range rec {
+		if i >= len(r.header) {
+			break
+		}
+		v := strings.TrimSpace(cell)
+		if v == "" {
+			continue
+		}
+		if !utf8.ValidString(v) && row.err == "" {
+			row.err = "parameter " + strconv.Quote(r.header[i]) + ": value is not valid UTF-8"
+		}
+		n := r.header[i]
+		row.names = append(row.names, n)
+		row.vals[n] = raw{kind: rawString, str: v, origin: v}
+	}
+	if len(row.names) == 0 && row.err == "" {
+		row.err = "empty row"
+	}
+	return row, nil
+}
+
+// jsonReader reads a JSON batch: an array of request objects, one
+// element at a time.
+type jsonReader struct {
+	dec *json.Decoder
+	end bool
+}
+
+func newJSONReader(body io.Reader) (*jsonReader, error) {
+	dec := json.NewDecoder(body)
+	t, err := dec.Token()
+	if err != nil {
+		var se *json.SyntaxError
+		if errors.As(err, &se) {
+			return nil, newError(errInvalid, "malformed JSON: "+jsonMessage(err))
+		}
+		return nil, readError(err, "a JSON array of request objects")
+	}
+	if d, ok := t.(json.Delim); !ok || d != '[' {
+		return nil, newError(errInvalid, "a JSON batch is an array of request objects, such as [{\"length\": \"30 m\", ...}, ...]")
+	}
+	return &jsonReader{dec: dec}, nil
+}
+
+func (r *jsonReader) columns() []string { return nil }
+
+func (r *jsonReader) next() (*batchRow, error) {
+	if r.end {
+		return nil, io.EOF
+	}
+	if !r.dec.More() {
+		r.end = true
+		if _, err := r.dec.Token(); err != nil {
+			return nil, jsonStop(err)
+		}
+		if _, err := r.dec.Token(); err != io.EOF {
+			if err == nil {
+				return nil, &stopError{errInvalid, "malformed JSON: data after the array"}
+			}
+			return nil, jsonStop(err)
+		}
+		return nil, io.EOF
+	}
+	var elem json.RawMessage
+	if err := r.dec.Decode(&elem); err != nil {
+		return nil, jsonStop(err)
+	}
+	return decodeElement(elem), nil
+}
+
+func jsonStop(err error) error {
+	var tl *bodyTooLarge
+	if errors.As(err, &tl) {
+		return &stopError{errTooLarge, tl.Error()}
+	}
+	return &stopError{errInvalid, "malformed JSON: " + jsonMessage(err)}
+}
+
+// decodeElement reads one request object, keeping its members in order.
+// What is wrong with it becomes the error of its row.
+func decodeElement(b []byte) *batchRow {
+	row := &batchRow{vals: map[string]raw{}}
+	dec := json.NewDecoder(bytes.NewReader(b))
+	dec.UseNumber()
+	t, err := dec.Token()
+	if d, ok := t.(json.Delim); err != nil || !ok || d != '{' {
+		return &batchRow{err: "each element of a batch is a JSON object of parameters"}
+	}
+	for dec.More() {
+		kt, err := dec.Token()
+		if err != nil {
+			return &batchRow{err: "malformed JSON: " + jsonMessage(err)}
+		}
+		key := kt.(string)
+		if _, dup := row.vals[key]; dup {
+			return &batchRow{err: "parameter " + strconv.Quote(key) + " given more than once"}
+		}
+		v, err := decodeValue(dec, key)
+		if err != nil {
+			out := &batchRow{err: err.Error()}
+			// Keep what was read, so the row still shows its inputs.
+			out.names, out.vals = row.names, row.vals
+			return out
+		}
+		row.names = append(row.names, key)
+		row.vals[key] = v
+	}
+	return row
+}
+
+// cellText is a parameter as a CSV cell: the text sent.
+func cellText(v raw) string {
+	switch v.kind {
+	case rawString:
+		return v.str
+	case rawBool:
+		return strconv.FormatBool(v.b)
+	case rawObject:
+		return strconv.FormatFloat(v.num, 'g', -1, 64) + " " + v.unit
+	}
+	return v.origin
+}
+
+// csvRowWriter writes rows as CSV, with CRLF line ends like format=csv.
+type csvRowWriter struct {
+	w      *csv.Writer
+	width  int // columns
+	inputs []string
+	rec    []string
+	num    []byte
+}
+
+func newCSVRowWriter(w io.Writer) *csvRowWriter {
+	cw := csv.NewWriter(w)
+	cw.UseCRLF = true
+	return &csvRowWriter{w: cw}
+}
+
+func (w *csvRowWriter) header(inputs, results []string) error {
+	w.inputs = inputs
+	w.width = len(inputs) + len(results) + 2
+	rec := make([]string, 0, w.width)
+	rec = append(rec, inputs...)
+	rec = append(rec, results...)
+	rec = append(rec, "warnings", "error")
+	w.rec = rec
+	return w.w.Write(rec)
+}
+
+func (w *csvRowWriter) row(in *batchRow, res []resultItem, fields []resultField, warnings []string, errMsg string) error {
+	rec := w.rec[:0]
+	for _, n := range w.inputs {
+		s := ""
+		if v, ok := in.vals[n]; ok {
+			s = cellText(v)
+		}
+		rec = append(rec, s)
+	}
+	j := 0
+	for _, f := range fields {
+		s := ""
+		if j < len(res) && res[j].name == f.name {
+			w.num = units.AppendNumber(w.num[:0], res[j].value)
+			s = string(w.num)
+			j++
+		}
+		rec = append(rec, s)
+	}
+	rec = append(rec, strings.Join(warnings, "; "), errMsg)
+	w.rec = rec
+	return w.w.Write(rec)
+}
+
+func (w *csvRowWriter) stop(msg string) error {
+	rec := w.rec[:0]
+	for len(rec) < w.width-1 {
+		rec = append(rec, "")
+	}
+	rec = append(rec, msg)
+	return w.w.Write(rec)
+}
+
+func (w *csvRowWriter) end() error {
+	w.w.Flush()
+	return w.w.Error()
+}
+
+// jsonRowWriter writes rows as a JSON array of flat objects with the
+// same keys as the CSV columns.
+type jsonRowWriter struct {
+	w       *bufio.Writer
+	results []string
+	// fixed are the input columns of a CSV body, echoed in every row
+	// (empty cells as ""); nil for a JSON body, whose rows echo their
+	// own members.
+	fixed []string
+	n     int
+	buf   []byte
+}
+
+func (w *jsonRowWriter) header(inputs, results []string) error {
+	if w.fixed != nil {
+		w.fixed = inputs
+	}
+	_, err := w.w.WriteString("[")
+	return err
+}
+
+func (w *jsonRowWriter) open() {
+	if w.n > 0 {
+		w.buf = append(w.buf, ',')
+	}
+	w.buf = append(w.buf, '\n', '{')
+	w.n++
+}
+
+func (w *jsonRowWriter) row(in *batchRow, res []resultItem, fields []resultField, warnings []string, errMsg string) error {
+	w.buf = w.buf[:0]
+	w.open()
+	names := in.names
+	if w.fixed != nil {
+		names = w.fixed
+	}
+	for _, n := range names {
+		w.buf = appendJSONString(w.buf, n)
+		w.buf = append(w.buf, ':')
+		v, ok := in.vals[n]
+		if !ok {
+			v = raw{kind: rawString}
+		}
+		switch v.kind {
+		case rawString:
+			w.buf = appendJSONString(w.buf, v.str)
+		case rawNumber:
+			w.buf = append(w.buf, v.origin...)
+		case rawBool:
+			w.buf = strconv.AppendBool(w.buf, v.b)
+		case rawObject:
+			w.buf = append(w.buf, `{"value":`...)
+			w.buf = strconv.AppendFloat(w.buf, v.num, 'g', -1, 64)
+			w.buf = append(w.buf, `,"unit":`...)
+			w.buf = appendJSONString(w.buf, v.unit)
+			w.buf = append(w.buf, '}')
+		}
+		w.buf = append(w.buf, ',')
+	}
+	j := 0
+	for i, f := range fields {
+		w.buf = appendJSONString(w.buf, w.results[i])
+		w.buf = append(w.buf, ':')
+		if j < len(res) && res[j].name == f.name {
+			w.buf = units.AppendNumber(w.buf, res[j].value)
+			j++
+		} else {
+			w.buf = append(w.buf, "null"...)
+		}
+		w.buf = append(w.buf, ',')
+	}
+	w.buf = append(w.buf, `"warnings":`...)
+	w.buf = appendJSONString(w.buf, strings.Join(warnings, "; "))
+	w.buf = append(w.buf, `,"error":`...)
+	w.buf = appendJSONString(w.buf, errMsg)
+	w.buf = append(w.buf, '}')
+	_, err := w.w.Write(w.buf)
+	return err
+}
+
+func (w *jsonRowWriter) stop(msg string) error {
+	w.buf = w.buf[:0]
+	w.open()
+	w.buf = append(w.buf, `"error":`...)
+	w.buf = appendJSONString(w.buf, msg)
+	w.buf = append(w.buf, '}')
+	_, err := w.w.Write(w.buf)
+	return err
+}
+
+func (w *jsonRowWriter) end() error {
+	_, err := w.w.WriteString("\n]\n")
+	return err
+}

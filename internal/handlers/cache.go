@@ -1,7 +1,157 @@
 package handlers
 
-import "github.com/gin-gonic/gin"
+import (
+	"crypto/sha256"
+	"encoding/hex"
+	"net/http"
+	"sort"
+	"strconv"
+	"strings"
 
-// cache sets Cache-Control and ETag on GET calculations and answers
-// If-None-Match.
-func (h *Handler) cache(c *gin.Context) { c.Next() }
+	"github.com/gin-gonic/gin"
+)
+
+// cacheMaxAge is how long a client or gateway may reuse a calculation's
+// answer without asking again. The answer to a GET is a function of the
+// request and of the service and materials versions, so the only reason
+// to ask again is an upgrade: after one, the ETag changes and a
+// revalidation fetches the new answer.
+const cacheMaxAge = 300
+
+// cache sets Cache-Control and ETag on GET requests of the /v1/ routes
+// (calculations, materials, units) and answers If-None-Match with 304
+// Not Modified without running the handler.
+//
+// The ETag is a hash of the method, the path, the query parameters sorted
+// by name (without api_key) and the service and materials versions: the
+// same request to the same build gets the same body, byte for byte.
+// Headers must be set before the handler writes, so they are set here up
+// front; a writer wrapper then turns them into "Cache-Control: no-store"
+// (and drops the ETag) when the answer is an error: any status but 200
+// (and 304), or a 200 "#ERROR:" answer of on_error=inline. Errors of
+// other routes and methods are marked no-store too.
+func (h *Handler) cache(c *gin.Context) {
+	if c.Request.Method != http.MethodGet || !strings.HasPrefix(c.FullPath(), "/v1/") {
+		// Not cacheable, but an error is still marked no-store, so that
+		// no cache keeps a 404 heuristically.
+		c.Writer = &cacheWriter{ResponseWriter: c.Writer, c: c}
+		c.Next()
+		return
+	}
+	tag := h.etag(c.Request)
+	cc := "public, max-age=" + strconv.Itoa(cacheMaxAge)
+	if h.opts.APIKeys != nil {
+		// A shared cache must not hand one key holder's answer to a
+		// caller without a key.
+		cc = "private, max-age=" + strconv.Itoa(cacheMaxAge)
+	}
+	hd := c.Writer.Header()
+	hd.Set("ETag", tag)
+	hd.Set("Cache-Control", cc)
+	if etagMatch(c.GetHeader("If-None-Match"), tag) {
+		c.Writer.WriteHeader(http.StatusNotModified)
+		c.Writer.WriteHeaderNow()
+		c.Abort()
+		return
+	}
+	c.Writer = &cacheWriter{ResponseWriter: c.Writer, c: c}
+	c.Next()
+}
+
+// etag derives the entity tag of a GET from what decides its body.
+func (h *Handler) etag(r *http.Request) string {
+	q := r.URL.Query()
+	names := make([]string, 0, len(q))
+	for k := range q {
+		if k != apiKeyParam {
+			names = append(names, k)
+		}
+	}
+	sort.Strings(names)
+	sum := sha256.New()
+	// Every part is length-prefixed, so that no two requests share an
+	// encoding ("a=b&c" and "a=b%26c" differ).
+	part := func(s string) {
+		sum.Write(strconv.AppendInt(nil, int64(len(s)), 10))
+		sum.Write([]byte{':'})
+		sum.Write([]byte(s))
+	}
+	part(r.Method)
+	part(r.URL.Path)
+	for _, k := range names {
+		part(k)
+		part(strconv.Itoa(len(q[k])))
+		for _, v := range q[k] {
+			part(v)
+		}
+	}
+	part(h.opts.Version)
+	part(h.cat.Version)
+	return `"` + hex.EncodeToString(sum.Sum(nil)[:16]) + `"`
+}
+
+// etagMatch reports whether an If-None-Match header matches tag, by the
+// weak comparison RFC 9110 13.1.2 prescribes for it: "*" or any listed
+// tag equal to ours once a W/ prefix is removed.
+func etagMatch(header, tag string) bool {
+	header = strings.TrimSpace(header)
+	if header == "" {
+		return false
+	}
+	if header == "*" {
+		return true
+	}
+	for _, t := range strings.Split(header, ",") {
+		t = strings.TrimSpace(t)
+		t = strings.TrimPrefix(t, "W/")
+		if t == tag {
+			return true
+		}
+	}
+	return false
+}
+
+// cacheWriter replaces the caching headers set up front by "no-store"
+// when the answer turns out to be an error.
+type cacheWriter struct {
+	gin.ResponseWriter
+	c    *gin.Context
+	done bool
+}
+
+func (w *cacheWriter) fix(status int) {
+	if w.done {
+		return
+	}
+	w.done = true
+	_, isProblem := w.c.Get(problemKey)
+	if (status != http.StatusOK && status != http.StatusNotModified) || isProblem {
+		hd := w.ResponseWriter.Header()
+		hd.Set("Cache-Control", "no-store")
+		hd.Del("ETag")
+	}
+}
+
+func (w *cacheWriter) WriteHeader(status int) {
+	w.fix(status)
+	w.ResponseWriter.WriteHeader(status)
+}
+
+func (w *cacheWriter) WriteHeaderNow() {
+	w.fix(w.ResponseWriter.Status())
+	w.ResponseWriter.WriteHeaderNow()
+}
+
+func (w *cacheWriter) Write(b []byte) (int, error) {
+	w.fix(w.ResponseWriter.Status())
+	return w.ResponseWriter.Write(b)
+}
+
+func (w *cacheWriter) WriteString(s string) (int, error) {
+	w.fix(w.ResponseWriter.Status())
+	return w.ResponseWriter.WriteString(s)
+}
+
+// Unwrap lets http.ResponseController reach the connection's writer (a
+// batch enables full duplex through it).
+func (w *cacheWriter) Unwrap() http.ResponseWriter { return w.ResponseWriter }

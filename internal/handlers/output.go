@@ -154,7 +154,9 @@ func textBody(items []resultItem, result string) []byte {
 
 // csvBody is the format=csv answer: a header row naming each result with
 // its unit, and one data row.
-func csvBody(items []resultItem) []byte {
+// Checks, where a calculation has them, follow as columns check_<name>
+// holding pass or fail.
+func csvBody(items []resultItem, checks []Check) []byte {
 	var b bytes.Buffer
 	for i, it := range items {
 		if i > 0 {
@@ -162,12 +164,22 @@ func csvBody(items []resultItem) []byte {
 		}
 		b.WriteString(csvHeader(it.name, it.unit))
 	}
+	for _, c := range checks {
+		b.WriteString(",check_" + c.Name)
+	}
 	b.WriteString("\r\n")
 	for i, it := range items {
 		if i > 0 {
 			b.WriteByte(',')
 		}
 		b.Write(units.AppendNumber(nil, it.value))
+	}
+	for _, c := range checks {
+		if c.Pass {
+			b.WriteString(",pass")
+		} else {
+			b.WriteString(",fail")
+		}
 	}
 	b.WriteString("\r\n")
 	return b.Bytes()
@@ -188,7 +200,10 @@ func csvHeader(name, unit string) string {
 // xmlBody is the format=xml answer: flat, no namespaces, one element per
 // result holding the number, with its unit as an attribute, then the
 // warnings, so that FILTERXML(x, "//delta_length") reads a number.
-func xmlBody(calculation string, items []resultItem, warnings []string) []byte {
+//
+// Checks, where a calculation has them, are elements
+// <check name="gap_stays_open" pass="true">detail</check>.
+func xmlBody(calculation string, items []resultItem, checks []Check, warnings []string) []byte {
 	var b bytes.Buffer
 	b.WriteString(`<?xml version="1.0" encoding="UTF-8"?>` + "\n")
 	b.WriteString(`<result calculation="`)
@@ -200,6 +215,13 @@ func xmlBody(calculation string, items []resultItem, warnings []string) []byte {
 		b.WriteString(`">`)
 		b.Write(units.AppendNumber(nil, it.value))
 		b.WriteString("</" + it.name + ">")
+	}
+	for _, c := range checks {
+		b.WriteString(`<check name="`)
+		xml.EscapeText(&b, []byte(c.Name))
+		b.WriteString(`" pass="` + strconv.FormatBool(c.Pass) + `">`)
+		xml.EscapeText(&b, []byte(c.Detail))
+		b.WriteString("</check>")
 	}
 	for _, w := range warnings {
 		b.WriteString("<warning>")

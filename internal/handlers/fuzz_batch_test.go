@@ -1,0 +1,70 @@
+package handlers
+
+import (
+	"bytes"
+	"encoding/csv"
+	"io"
+	"net/http"
+	"net/http/httptest"
+	"strings"
+	"testing"
+)
+
+// FuzzBatchCSV sends arbitrary CSV bodies to the linear batch: the
+// service never panics and never answers 500, a 200 answer is CSV with
+// the warnings and error columns, and no row meets an internal error.
+func FuzzBatchCSV(f *testing.F) {
+	for _, s := range []string{
+		"length,alpha,delta_t\n48 m,12e-6/K,50 K\n",
+		"length,material,t_initial,t_final\n30 m,concrete,15 degC,-10 degC\n,,,\n",
+		"\ufefflength,alpha,delta_t\r\n\"1,5 m\",12e-6/K,50 K\r\n",
+		"length,alpha,delta_t\n1e308 m,1e308/K,1e308 K\n-0 m,0/K,0 K\n",
+		"length,alpha\n\"unterminated,1\n",
+		"a,b,c\n1,2\n1,2,3,4\n",
+		"length,,x\n",
+		"length,alpha,delta_t\n\x00\xff,\"\"\"\",NaN K\n",
+		"units,length\nus,1 m\n",
+		"",
+	} {
+		f.Add([]byte(s))
+	}
+	h := batchTestHandler(f, Options{BatchMaxRows: 50, BatchMaxBytes: 16 << 10})
+	r := h.Router()
+	f.Fuzz(func(t *testing.T, body []byte) {
+		req := httptest.NewRequest(http.MethodPost, "/v1/batch/expansion/linear?units=us", bytes.NewReader(body))
+		req.Header.Set("Content-Type", "text/csv")
+		w := httptest.NewRecorder()
+		r.ServeHTTP(w, req)
+		switch w.Code {
+		case http.StatusOK:
+		case http.StatusBadRequest, http.StatusRequestEntityTooLarge:
+			if w.Header().Get("Content-Type") != "application/problem+json" {
+				t.Fatalf("status %d without a problem: %q", w.Code, w.Body)
+			}
+			return
+		default:
+			t.Fatalf("status %d: %s", w.Code, w.Body)
+		}
+		cr := csv.NewReader(w.Body)
+		cr.FieldsPerRecord = 0 // every row as wide as the header
+		header, err := cr.Read()
+		if err != nil {
+			t.Fatalf("answer is not CSV: %v", err)
+		}
+		if n := len(header); n < 2 || header[n-1] != "error" || header[n-2] != "warnings" {
+			t.Fatalf("header %q", header)
+		}
+		for {
+			rec, err := cr.Read()
+			if err == io.EOF {
+				break
+			}
+			if err != nil {
+				t.Fatalf("answer is not CSV: %v", err)
+			}
+			if strings.Contains(rec[len(rec)-1], "unexpected condition") {
+				t.Fatalf("internal error in a row: %q", rec)
+			}
+		}
+	})
+}
