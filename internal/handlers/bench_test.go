@@ -198,13 +198,13 @@ func BenchmarkEncode(b *testing.B) {
 	b.Run("csv", func(b *testing.B) {
 		b.ReportAllocs()
 		for b.Loop() {
-			_ = csvBody(items)
+			_ = csvBody(items, nil)
 		}
 	})
 	b.Run("xml", func(b *testing.B) {
 		b.ReportAllocs()
 		for b.Loop() {
-			_ = xmlBody(resp.Calculation, items, resp.Warnings)
+			_ = xmlBody(resp.Calculation, items, nil, resp.Warnings)
 		}
 	})
 }

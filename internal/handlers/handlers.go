@@ -204,6 +204,17 @@ var standingCautions = []string{
 	"A licensed engineer checks the design before anything is built.",
 }
 
+// checked is implemented by results that carry pass/fail checks, so that
+// the csv and xml formats show them too.
+type checked interface{ checkList() []Check }
+
+func checksOf(res any) []Check {
+	if c, ok := res.(checked); ok {
+		return c.checkList()
+	}
+	return nil
+}
+
 // renderer is implemented by results that have formats of their own, such
 // as a table's CSV or a chart. render returns a nil body to fall back to
 // the generic formats.
@@ -233,10 +244,14 @@ func (h *Handler) write(c *gin.Context, out *outputOptions, resp *Response, item
 			return
 		}
 	case "csv":
-		body = csvBody(items)
+		body = csvBody(items, checksOf(resp.Results))
 	case "xml":
-		body = xmlBody(resp.Calculation, items, resp.Warnings)
+		body = xmlBody(resp.Calculation, items, checksOf(resp.Results), resp.Warnings)
 	default:
+		if typeOf(reflect.TypeOf(resp.Results)).valuesOnly {
+			body = appendResponse(make([]byte, 0, 2048), resp, items)
+			break
+		}
 		var err error
 		if body, err = json.Marshal(resp); err != nil {
 			h.problem(c, out, err)
@@ -261,6 +276,7 @@ func (h *Handler) problem(c *gin.Context, out *outputOptions, err error) {
 		return
 	}
 	body, _ := json.Marshal(pr)
+	c.Header("Cache-Control", "no-store")
 	c.Data(pr.Status, "application/problem+json", body)
 	c.Abort()
 }

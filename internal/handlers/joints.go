@@ -70,6 +70,8 @@ type GapResults struct {
 	Checks             []Check `json:"checks"`
 }
 
+func (r *GapResults) checkList() []Check { return r.Checks }
+
 // render writes the check details in the response's units and leaves the
 // body to the generic formats.
 func (r *GapResults) render(out *outputOptions, _ *Response) ([]byte, string, error) {

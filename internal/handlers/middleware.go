@@ -212,6 +212,9 @@ func safePath(p string) string {
 
 // allowed returns the Allow header for a path.
 func allowed(path string) string {
+	if strings.HasPrefix(path, "/v1/batch/") {
+		return "POST"
+	}
 	if strings.HasPrefix(path, "/v1/") && !strings.HasPrefix(path, "/v1/materials") && path != "/v1/units" {
 		return "GET, POST"
 	}

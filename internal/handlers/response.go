@@ -2,9 +2,9 @@ package handlers
 
 import (
 	"reflect"
-	"strconv"
 	"strings"
 	"sync"
+	"unicode/utf8"
 
 	"github.com/thermalmovement/service/internal/units"
 )
@@ -87,12 +87,16 @@ func (in *Inputs) addUsed(name string, v float64, unit, from string) {
 
 // MarshalJSON writes the inputs as an object in the order read.
 func (in Inputs) MarshalJSON() ([]byte, error) {
-	b := []byte{'{'}
+	return in.appendJSON(make([]byte, 0, 64*len(in)+2)), nil
+}
+
+func (in Inputs) appendJSON(b []byte) []byte {
+	b = append(b, '{')
 	for i, x := range in {
 		if i > 0 {
 			b = append(b, ',')
 		}
-		b = strconv.AppendQuote(b, x.Name)
+		b = appendJSONString(b, x.Name)
 		b = append(b, ':', '{')
 		sep := false
 		field := func(k string) {
@@ -110,19 +114,19 @@ func (in Inputs) MarshalJSON() ([]byte, error) {
 		}
 		if x.Unit != "" {
 			field("unit")
-			b = strconv.AppendQuote(b, x.Unit)
+			b = appendJSONString(b, x.Unit)
 		}
 		if x.Text != "" {
 			field("text")
-			b = strconv.AppendQuote(b, x.Text)
+			b = appendJSONString(b, x.Text)
 		}
 		if x.From != "" {
 			field("from")
-			b = strconv.AppendQuote(b, x.From)
+			b = appendJSONString(b, x.From)
 		}
 		b = append(b, '}')
 	}
-	return append(b, '}'), nil
+	return append(b, '}')
 }
 
 // resultField is one field of a results struct: its JSON name, its kind
@@ -155,21 +159,33 @@ var kindsByTag = map[string]units.Kind{
 	"density":       units.DensityKind,
 }
 
-var resultFieldCache sync.Map // reflect.Type -> []resultField
+// resultType is what the wrapper knows of a results struct type.
+type resultType struct {
+	fields     []resultField
+	valuesOnly bool // every exported field is a *Value: appendResponse can write it
+}
+
+var resultTypeCache sync.Map // reflect.Type -> *resultType
 
 // fieldsOf lists the result fields of a results struct type: every field
 // of type *Value, with its json name and its kind tag.
-func fieldsOf(t reflect.Type) []resultField {
+func fieldsOf(t reflect.Type) []resultField { return typeOf(t).fields }
+
+func typeOf(t reflect.Type) *resultType {
 	if t.Kind() == reflect.Pointer {
 		t = t.Elem()
 	}
-	if f, ok := resultFieldCache.Load(t); ok {
-		return f.([]resultField)
+	if rt, ok := resultTypeCache.Load(t); ok {
+		return rt.(*resultType)
 	}
 	var out []resultField
+	valuesOnly := true
 	for i := 0; i < t.NumField(); i++ {
 		f := t.Field(i)
 		if f.Type != reflect.TypeOf((*Value)(nil)) {
+			if f.IsExported() {
+				valuesOnly = false
+			}
 			continue
 		}
 		name, _, _ := strings.Cut(f.Tag.Get("json"), ",")
@@ -179,8 +195,9 @@ func fieldsOf(t reflect.Type) []resultField {
 		}
 		out = append(out, resultField{name: name, kind: k, index: i})
 	}
-	resultFieldCache.Store(t, out)
-	return out
+	rt := &resultType{fields: out, valuesOnly: valuesOnly}
+	resultTypeCache.Store(t, rt)
+	return rt
 }
 
 // resultItem is one result ready to write: its name, value in its output
@@ -211,4 +228,98 @@ func (o *outputOptions) convert(res any) ([]resultItem, bool) {
 		items = append(items, resultItem{name: f.name, value: x, unit: u.Symbol})
 	}
 	return items, true
+}
+
+// appendResponse writes resp as json.Marshal does, without reflection, for
+// results that are all Values; items are those results in order.
+func appendResponse(b []byte, resp *Response, items []resultItem) []byte {
+	b = append(b, `{"calculation":`...)
+	b = appendJSONString(b, resp.Calculation)
+	b = append(b, `,"results":{`...)
+	for i, it := range items {
+		if i > 0 {
+			b = append(b, ',')
+		}
+		b = appendJSONString(b, it.name)
+		b = append(b, `:{"value":`...)
+		b = units.AppendNumber(b, it.value)
+		b = append(b, `,"unit":`...)
+		b = appendJSONString(b, it.unit)
+		b = append(b, '}')
+	}
+	b = append(b, `},"inputs":`...)
+	b = resp.Inputs.appendJSON(b)
+	b = append(b, `,"method":`...)
+	b = appendJSONString(b, resp.Method)
+	for _, list := range [...]struct {
+		key   string
+		items []string
+	}{{`,"references":`, resp.References}, {`,"warnings":`, resp.Warnings}, {`,"cautions":`, resp.Cautions}} {
+		b = append(b, list.key...)
+		b = append(b, '[')
+		for i, s := range list.items {
+			if i > 0 {
+				b = append(b, ',')
+			}
+			b = appendJSONString(b, s)
+		}
+		b = append(b, ']')
+	}
+	b = append(b, `,"versions":{"service":`...)
+	b = appendJSONString(b, resp.Versions.Service)
+	b = append(b, `,"materials":`...)
+	b = appendJSONString(b, resp.Versions.Materials)
+	return append(b, '}', '}')
+}
+
+// appendJSONString appends s as a JSON string the way encoding/json does
+// by default: <, > and & escaped for HTML, U+2028 and U+2029 escaped,
+// invalid UTF-8 replaced by U+FFFD.
+func appendJSONString(b []byte, s string) []byte {
+	const hexDigits = "0123456789abcdef"
+	b = append(b, '"')
+	start := 0
+	for i := 0; i < len(s); {
+		c := s[i]
+		if c < utf8.RuneSelf {
+			if c >= 0x20 && c != '"' && c != '\\' && c != '<' && c != '>' && c != '&' {
+				i++
+				continue
+			}
+			b = append(b, s[start:i]...)
+			switch c {
+			case '"', '\\':
+				b = append(b, '\\', c)
+			case '\n':
+				b = append(b, '\\', 'n')
+			case '\r':
+				b = append(b, '\\', 'r')
+			case '\t':
+				b = append(b, '\\', 't')
+			default:
+				b = append(b, '\\', 'u', '0', '0', hexDigits[c>>4], hexDigits[c&0xf])
+			}
+			i++
+			start = i
+			continue
+		}
+		r, size := utf8.DecodeRuneInString(s[i:])
+		if r == utf8.RuneError && size == 1 {
+			b = append(b, s[start:i]...)
+			b = append(b, `\ufffd`...)
+			i += size
+			start = i
+			continue
+		}
+		if r == '\u2028' || r == '\u2029' {
+			b = append(b, s[start:i]...)
+			b = append(b, '\\', 'u', '2', '0', '2', hexDigits[r&0xf])
+			i += size
+			start = i
+			continue
+		}
+		i += size
+	}
+	b = append(b, s[start:]...)
+	return append(b, '"')
 }
