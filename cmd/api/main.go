@@ -15,6 +15,7 @@ import (
 	"os"
 	"os/signal"
 	"strconv"
+	"strings"
 	"syscall"
 	"time"
 
@@ -56,7 +57,8 @@ type config struct {
 	read            time.Duration
 	write           time.Duration
 	idle            time.Duration
-	maxHeaderBytes  int
+	maxHeaderBytes  int64
+	maxURLBytes     int64
 	maxBodyBytes    int64
 	logLevel        string
 	apiKeysFile     string
@@ -66,12 +68,30 @@ type config struct {
 }
 
 // parseConfig reads flags, falling back to environment variables, then
-// to defaults. The environment variable of --flag-name is FLAG_NAME.
+// to defaults, and checks the result. The environment variable of
+// --flag-name is FLAG_NAME.
 func parseConfig(args []string, getenv func(string) string, out io.Writer) (config, error) {
 	var c config
+	fs, errs := newFlagSet(&c, getenv, out)
+	if err := fs.Parse(args); err != nil {
+		return c, err
+	}
+	if len(*errs) > 0 {
+		return c, errors.Join(*errs...)
+	}
+	if fs.NArg() > 0 {
+		return c, fmt.Errorf("unexpected arguments %q", fs.Args())
+	}
+	return c, c.check()
+}
+
+// newFlagSet declares every setting of c as a flag whose default is its
+// environment variable, when set, else the built-in default. Malformed
+// environment values are collected in errs.
+func newFlagSet(c *config, getenv func(string) string, out io.Writer) (*flag.FlagSet, *[]error) {
 	fs := flag.NewFlagSet("api", flag.ContinueOnError)
 	fs.SetOutput(out)
-	var errs []error
+	errs := new([]error)
 	str := func(p *string, name, def, usage string) {
 		if v := getenv(envName(name)); v != "" {
 			def = v
@@ -82,7 +102,7 @@ func parseConfig(args []string, getenv func(string) string, out io.Writer) (conf
 		if v := getenv(envName(name)); v != "" {
 			d, err := time.ParseDuration(v)
 			if err != nil {
-				errs = append(errs, fmt.Errorf("%s=%q: %w", envName(name), v, err))
+				*errs = append(*errs, fmt.Errorf("%s=%q: %w", envName(name), v, err))
 			}
 			def = d
 		}
@@ -92,13 +112,12 @@ func parseConfig(args []string, getenv func(string) string, out io.Writer) (conf
 		if v := getenv(envName(name)); v != "" {
 			n, err := strconv.ParseInt(v, 10, 64)
 			if err != nil {
-				errs = append(errs, fmt.Errorf("%s=%q: %w", envName(name), v, err))
+				*errs = append(*errs, fmt.Errorf("%s=%q: %w", envName(name), v, err))
 			}
 			def = n
 		}
 		fs.Int64Var(p, name, def, usage+" (env "+envName(name)+")")
 	}
-	var maxHeader int64
 	str(&c.addr, "addr", ":8080", "listen address of the API")
 	str(&c.metricsAddr, "metrics-addr", "", "separate listen address for /metrics; empty serves /metrics on --addr")
 	dur(&c.shutdownDelay, "shutdown-delay", 0, "on SIGTERM, keep serving this long with /readyz at 503 before shutting down")
@@ -107,35 +126,93 @@ func parseConfig(args []string, getenv func(string) string, out io.Writer) (conf
 	dur(&c.read, "read-timeout", 30*time.Second, "http.Server ReadTimeout")
 	dur(&c.write, "write-timeout", 60*time.Second, "http.Server WriteTimeout")
 	dur(&c.idle, "idle-timeout", 120*time.Second, "http.Server IdleTimeout")
-	integer(&maxHeader, "max-header-bytes", 16<<10, "largest request header block, bytes")
+	integer(&c.maxHeaderBytes, "max-header-bytes", 16<<10, "largest request line and header block, bytes")
+	integer(&c.maxURLBytes, "max-url-bytes", 8<<10, "longest request URI (path and query), bytes; longer: 414")
 	integer(&c.maxBodyBytes, "max-body-bytes", 64<<10, "largest JSON body of a calculation, bytes")
 	str(&c.logLevel, "log-level", "info", "debug, info, warn or error")
 	str(&c.apiKeysFile, "api-keys-file", "", "file of accepted API keys as SHA-256 hashes with labels; empty: no keys required")
 	integer(&c.maxInFlight, "max-in-flight", 256, "requests served at once; beyond, 503 with Retry-After (0: no bound)")
 	integer(&c.batchMaxRows, "batch-max-rows", 100000, "rows of one batch request")
 	integer(&c.batchMaxBytes, "batch-max-bytes", 32<<20, "body of one batch request, bytes")
-	if err := fs.Parse(args); err != nil {
-		return c, err
+	return fs, errs
+}
+
+// check validates the settings together, so that a mistake stops the
+// process at start-up rather than showing under load.
+func (c config) check() error {
+	var errs []error
+	bad := func(format string, a ...any) { errs = append(errs, fmt.Errorf(format, a...)) }
+	if err := checkAddr(c.addr); err != nil {
+		bad("--addr %q: %w", c.addr, err)
 	}
-	if len(errs) > 0 {
-		return c, errors.Join(errs...)
+	if c.metricsAddr != "" {
+		if err := checkAddr(c.metricsAddr); err != nil {
+			bad("--metrics-addr %q: %w", c.metricsAddr, err)
+		} else if c.metricsAddr == c.addr && !strings.HasSuffix(c.addr, ":0") {
+			bad("--metrics-addr must differ from --addr")
+		}
 	}
-	if fs.NArg() > 0 {
-		return c, fmt.Errorf("unexpected arguments %q", fs.Args())
+	if c.shutdownDelay < 0 {
+		bad("--shutdown-delay must not be negative")
 	}
-	c.maxHeaderBytes = int(maxHeader)
-	switch {
-	case c.shutdownDelay < 0 || c.shutdownTimeout <= 0:
-		return c, errors.New("--shutdown-delay must not be negative and --shutdown-timeout must be positive")
-	case c.readHeader <= 0 || c.read <= 0 || c.write <= 0 || c.idle <= 0:
-		return c, errors.New("every timeout must be positive")
-	case c.maxHeaderBytes < 1024 || c.maxBodyBytes < 1024:
-		return c, errors.New("--max-header-bytes and --max-body-bytes must be at least 1024")
+	if c.shutdownTimeout <= 0 {
+		bad("--shutdown-timeout must be positive")
+	}
+	if c.readHeader <= 0 || c.read <= 0 || c.write <= 0 || c.idle <= 0 {
+		bad("every timeout must be positive")
+	}
+	if c.maxHeaderBytes < 1024 || c.maxHeaderBytes > 1<<20 {
+		bad("--max-header-bytes must be from 1024 to 1048576")
+	}
+	if c.maxURLBytes < 256 || c.maxURLBytes > c.maxHeaderBytes {
+		bad("--max-url-bytes must be from 256 to --max-header-bytes")
+	}
+	if c.maxBodyBytes < 1024 {
+		bad("--max-body-bytes must be at least 1024")
+	}
+	if c.maxInFlight < 0 || c.maxInFlight > 1<<20 {
+		bad("--max-in-flight must be from 0 (no bound) to 1048576")
+	}
+	if c.batchMaxRows < 1 || c.batchMaxRows > 1<<31-1 {
+		bad("--batch-max-rows must be positive")
+	}
+	if c.batchMaxBytes < 1024 {
+		bad("--batch-max-bytes must be at least 1024")
 	}
 	if _, err := zapcore.ParseLevel(c.logLevel); err != nil {
-		return c, fmt.Errorf("--log-level: %w", err)
+		bad("--log-level: %w", err)
 	}
-	return c, nil
+	return errors.Join(errs...)
+}
+
+// checkAddr checks a listen address of the form host:port, the port a
+// number (0 picks a free one).
+func checkAddr(addr string) error {
+	_, port, err := net.SplitHostPort(addr)
+	if err != nil {
+		return err
+	}
+	if _, err := strconv.ParseUint(port, 10, 16); err != nil {
+		return fmt.Errorf("port %q is not a number from 0 to 65535", port)
+	}
+	return nil
+}
+
+// loadAPIKeys reads the keys file named by --api-keys-file, if any.
+func loadAPIKeys(name string) (*handlers.APIKeys, error) {
+	if name == "" {
+		return nil, nil
+	}
+	f, err := os.Open(name)
+	if err != nil {
+		return nil, fmt.Errorf("--api-keys-file: %w", err)
+	}
+	defer f.Close()
+	keys, err := handlers.LoadAPIKeys(f)
+	if err != nil {
+		return nil, fmt.Errorf("--api-keys-file %s: %w", name, err)
+	}
+	return keys, nil
 }
 
 func envName(flagName string) string {
@@ -163,9 +240,18 @@ func run(ctx context.Context, args []string, getenv func(string) string, stdout 
 	zc.Level = zap.NewAtomicLevelAt(level)
 	zc.Sampling = nil
 	enc := zapcore.NewJSONEncoder(zc.EncoderConfig)
-	log := zap.New(zapcore.NewCore(enc, zapcore.Lock(zapcore.AddSync(stdout)), level))
-	defer func() { _ = log.Sync() }()
+	// Log lines are buffered and written at least once a second (one
+	// write per line would cost a system call per request); Stop flushes
+	// them at exit, and the lines that mark the life of the process are
+	// synced at once.
+	logOut := &zapcore.BufferedWriteSyncer{WS: zapcore.AddSync(stdout), Size: 256 << 10, FlushInterval: time.Second}
+	defer func() { _ = logOut.Stop() }()
+	log := zap.New(zapcore.NewCore(enc, logOut, level))
 
+	keys, err := loadAPIKeys(cfg.apiKeysFile)
+	if err != nil {
+		return err
+	}
 	cat, err := materials.Load()
 	if err != nil {
 		return err
@@ -173,8 +259,8 @@ func run(ctx context.Context, args []string, getenv func(string) string, stdout 
 	reg := prometheus.NewRegistry()
 	reg.MustRegister(collectors.NewGoCollector(), collectors.NewProcessCollector(collectors.ProcessCollectorOpts{}))
 	metricsHandler := promhttp.HandlerFor(reg, promhttp.HandlerOpts{Registry: reg})
-	opts := handlers.Options{Version: version, Commit: commit, MaxBodyBytes: cfg.maxBodyBytes,
-		MaxInFlight: int(cfg.maxInFlight), BatchMaxRows: int(cfg.batchMaxRows), BatchMaxBytes: cfg.batchMaxBytes}
+	opts := handlers.Options{Version: version, Commit: commit, MaxBodyBytes: cfg.maxBodyBytes, MaxURLBytes: int(cfg.maxURLBytes),
+		MaxInFlight: int(cfg.maxInFlight), BatchMaxRows: int(cfg.batchMaxRows), BatchMaxBytes: cfg.batchMaxBytes, APIKeys: keys}
 	if cfg.metricsAddr == "" {
 		opts.Metrics = metricsHandler
 	}
@@ -193,7 +279,7 @@ func run(ctx context.Context, args []string, getenv func(string) string, stdout 
 		ReadTimeout:       cfg.read,
 		WriteTimeout:      cfg.write,
 		IdleTimeout:       cfg.idle,
-		MaxHeaderBytes:    cfg.maxHeaderBytes,
+		MaxHeaderBytes:    int(cfg.maxHeaderBytes),
 		ErrorLog:          zap.NewStdLog(log.Named("http")),
 	}
 	servers := []*http.Server{srv}
@@ -206,18 +292,30 @@ func run(ctx context.Context, args []string, getenv func(string) string, stdout 
 		}
 		mux := http.NewServeMux()
 		mux.Handle("GET /metrics", metricsHandler)
-		servers = append(servers, &http.Server{Handler: mux, ReadHeaderTimeout: cfg.readHeader})
+		servers = append(servers, &http.Server{Handler: mux, ReadHeaderTimeout: cfg.readHeader,
+			ReadTimeout: cfg.read, WriteTimeout: cfg.write, IdleTimeout: cfg.idle,
+			MaxHeaderBytes: int(cfg.maxHeaderBytes), ErrorLog: srv.ErrorLog})
 		listeners = append(listeners, mln)
 	}
 	errc := make(chan error, len(servers))
 	for i, s := range servers {
 		go func() { errc <- s.Serve(listeners[i]) }()
 	}
+	metricsAt := ln.Addr().String()
+	if len(listeners) > 1 {
+		metricsAt = listeners[1].Addr().String()
+	}
 	log.Info("serving", zap.String("addr", ln.Addr().String()), zap.String("version", version),
-		zap.String("materials", cat.Version), zap.String("metrics_addr", cfg.metricsAddr))
+		zap.String("commit", commit), zap.String("materials", cat.Version),
+		zap.String("metrics_addr", metricsAt), zap.Int("api_keys", keys.Len()),
+		zap.Int64("max_in_flight", cfg.maxInFlight))
+	_ = logOut.Sync()
 
 	select {
 	case err := <-errc:
+		for _, s := range servers {
+			_ = s.Close()
+		}
 		return err
 	case <-ctx.Done():
 	}
@@ -226,6 +324,7 @@ func run(ctx context.Context, args []string, getenv func(string) string, stdout 
 	// the servers stop taking connections and in-flight requests finish.
 	h.Drain()
 	log.Info("draining", zap.Duration("shutdown_delay", cfg.shutdownDelay))
+	_ = logOut.Sync()
 	time.Sleep(cfg.shutdownDelay)
 	sctx, cancel := context.WithTimeout(context.Background(), cfg.shutdownTimeout)
 	defer cancel()

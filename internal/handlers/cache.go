@@ -4,7 +4,7 @@ import (
 	"crypto/sha256"
 	"encoding/hex"
 	"net/http"
-	"sort"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -38,7 +38,7 @@ func (h *Handler) cache(c *gin.Context) {
 		c.Next()
 		return
 	}
-	tag := h.etag(c.Request)
+	tag := h.etag(c)
 	cc := "public, max-age=" + strconv.Itoa(cacheMaxAge)
 	if h.opts.APIKeys != nil {
 		// A shared cache must not hand one key holder's answer to a
@@ -59,26 +59,29 @@ func (h *Handler) cache(c *gin.Context) {
 }
 
 // etag derives the entity tag of a GET from what decides its body.
-func (h *Handler) etag(r *http.Request) string {
-	q := r.URL.Query()
-	names := make([]string, 0, len(q))
+func (h *Handler) etag(c *gin.Context) string {
+	r := c.Request
+	q := queryOf(c)
+	var names [16]string
+	keys := names[:0]
 	for k := range q {
 		if k != apiKeyParam {
-			names = append(names, k)
+			keys = append(keys, k)
 		}
 	}
-	sort.Strings(names)
-	sum := sha256.New()
+	slices.Sort(keys)
 	// Every part is length-prefixed, so that no two requests share an
 	// encoding ("a=b&c" and "a=b%26c" differ).
+	var buf [512]byte
+	b := buf[:0]
 	part := func(s string) {
-		sum.Write(strconv.AppendInt(nil, int64(len(s)), 10))
-		sum.Write([]byte{':'})
-		sum.Write([]byte(s))
+		b = strconv.AppendInt(b, int64(len(s)), 10)
+		b = append(b, ':')
+		b = append(b, s...)
 	}
 	part(r.Method)
 	part(r.URL.Path)
-	for _, k := range names {
+	for _, k := range keys {
 		part(k)
 		part(strconv.Itoa(len(q[k])))
 		for _, v := range q[k] {
@@ -87,7 +90,11 @@ func (h *Handler) etag(r *http.Request) string {
 	}
 	part(h.opts.Version)
 	part(h.cat.Version)
-	return `"` + hex.EncodeToString(sum.Sum(nil)[:16]) + `"`
+	sum := sha256.Sum256(b)
+	var out [34]byte
+	out[0], out[33] = '"', '"'
+	hex.Encode(out[1:33], sum[:16])
+	return string(out[:])
 }
 
 // etagMatch reports whether an If-None-Match header matches tag, by the

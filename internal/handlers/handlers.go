@@ -7,6 +7,7 @@ package handlers
 import (
 	"encoding/json"
 	"net/http"
+	"net/url"
 	"reflect"
 	"sync/atomic"
 
@@ -28,6 +29,8 @@ type Options struct {
 	// MaxInFlight bounds the requests served at once; beyond it the
 	// service answers 503 with Retry-After. 0: no bound.
 	MaxInFlight int
+	// MaxURLBytes bounds the request URI; longer ones get 414. 0: 8 KiB.
+	MaxURLBytes int
 	// BatchMaxRows and BatchMaxBytes bound one batch request.
 	BatchMaxRows  int
 	BatchMaxBytes int64
@@ -40,12 +43,17 @@ type Handler struct {
 	opts    Options
 	metrics *metrics
 	ready   atomic.Bool
+	// inFlight counts the requests being served, for shed.
+	inFlight atomic.Int64
 }
 
 // New returns the handlers, registering their metrics on reg.
 func New(log *zap.Logger, reg prometheus.Registerer, cat *materials.Catalogue, opts Options) (*Handler, error) {
 	if opts.MaxBodyBytes <= 0 {
 		opts.MaxBodyBytes = 64 << 10
+	}
+	if opts.MaxURLBytes <= 0 {
+		opts.MaxURLBytes = 8 << 10
 	}
 	m, err := newMetrics(reg, opts, cat.Version)
 	if err != nil {
@@ -73,7 +81,7 @@ func (h *Handler) Router() *gin.Engine {
 	r.HandleMethodNotAllowed = true
 	r.RedirectTrailingSlash = false
 	r.RedirectFixedPath = false
-	r.Use(h.requestID, h.observe, h.recover, h.shed, h.auth, h.cache)
+	r.Use(h.requestID, h.observe, h.recover, h.limitURL, h.shed, h.auth, h.cache)
 	for _, rt := range h.routes() {
 		r.Handle(rt.method, rt.path, rt.handler)
 	}
@@ -144,7 +152,7 @@ func (h *Handler) calculation(spec calcSpec) gin.HandlerFunc {
 	fields := fieldsOf(reflect.TypeOf(spec.results))
 	return func(c *gin.Context) {
 		vals := make(map[string]raw, 8)
-		if errs := readQuery(c.Request.URL.Query(), vals); len(errs) > 0 {
+		if errs := readQuery(queryOf(c), vals); len(errs) > 0 {
 			h.problem(c, nil, newError(errInvalid, "invalid query string", errs...))
 			return
 		}
@@ -181,6 +189,18 @@ func (h *Handler) calculation(spec calcSpec) gin.HandlerFunc {
 		h.complete(resp, spec.name, p)
 		h.write(c, out, resp, items)
 	}
+}
+
+const queryKey = "query"
+
+// queryOf returns the request's query parameters, parsed once per request.
+func queryOf(c *gin.Context) url.Values {
+	if v, ok := c.Get(queryKey); ok {
+		return v.(url.Values)
+	}
+	q := c.Request.URL.Query()
+	c.Set(queryKey, q)
+	return q
 }
 
 // complete fills the parts of a response every calculation shares.

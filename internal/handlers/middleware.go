@@ -115,6 +115,16 @@ func (h *Handler) recover(c *gin.Context) {
 	c.Next()
 }
 
+// limitURL refuses request URIs over Options.MaxURLBytes with 414.
+func (h *Handler) limitURL(c *gin.Context) {
+	if len(c.Request.RequestURI) > h.opts.MaxURLBytes {
+		c.Header("Connection", "close")
+		h.problem(c, nil, newError(errURITooLong, "request URI over "+strconv.Itoa(h.opts.MaxURLBytes)+" bytes; send long inputs as a POST JSON body"))
+		return
+	}
+	c.Next()
+}
+
 // metrics are the service's Prometheus collectors.
 type metrics struct {
 	requests *prometheus.CounterVec

@@ -29,14 +29,17 @@ func isControl(name string) bool {
 	return strings.HasSuffix(name, "_unit")
 }
 
+// baseFormats are the formats of every calculation.
+var baseFormats = []string{"json", "text", "csv", "xml"}
+
 // readOutput reads the output parameters; fields are the calculation's
 // results, formats the formats it offers beyond json, text, csv and xml.
 func readOutput(p *params, fields []resultField, formats ...string) *outputOptions {
 	o := &outputOptions{format: "json", system: "si"}
-	allowed := append([]string{"json", "text", "csv", "xml"}, formats...)
 	if f, ok := p.text("format"); ok {
 		o.format = f
-		if !contains(allowed, f) {
+		if !contains(baseFormats, f) && !contains(formats, f) {
+			allowed := append(append([]string(nil), baseFormats...), formats...)
 			p.invalid("format", strconv.Quote(f)+" is not one of "+strings.Join(allowed, ", "))
 			o.format = "json"
 		}

@@ -23,11 +23,14 @@ type params struct {
 }
 
 func newParams(vals map[string]raw, cat *materials.Catalogue) *params {
-	return &params{vals: vals, used: make(map[string]bool, len(vals)), errs: map[errKind][]FieldError{}, cat: cat}
+	return &params{vals: vals, used: make(map[string]bool, len(vals)), cat: cat}
 }
 
 // fail records a problem with the named parameter.
 func (p *params) fail(k errKind, name, detail string) {
+	if p.errs == nil {
+		p.errs = map[errKind][]FieldError{}
+	}
 	p.errs[k] = append(p.errs[k], FieldError{Parameter: name, Detail: detail})
 }
 
@@ -115,9 +118,34 @@ func (p *params) dim(name string, d units.Dim) (float64, bool) {
 		p.invalid(name, dimMessage(err, q, d))
 		return 0, false
 	}
+	if limit, ok := plausible[d]; ok && math.Abs(v) > limit {
+		p.unprocessable(name, q.String()+" is beyond any structure, vessel or material this service computes")
+		return 0, false
+	}
 	p.inputs.addQuantity(name, q)
 	return v, true
 }
+
+// plausible bounds the magnitude of inputs, in SI, far beyond any real
+// structure or material, so that a mistyped exponent is refused rather
+// than computed: lengths to 1000 km, coefficients to 1e-2 per K, stresses
+// to 10 TPa. Common practice, no published source.
+var plausible = map[units.Dim]float64{
+	units.Length:       1e6,
+	units.Area:         1e10,
+	units.Volume:       1e12,
+	units.SecondMoment: 1e6,
+	units.Coefficient:  1e-2,
+	units.Stress:       1e13,
+	units.Force:        1e13,
+	units.Moment:       1e13,
+	units.Stiffness:    1e15,
+	units.Density:      1e6,
+	units.Curvature:    1e6,
+}
+
+// maxKelvin bounds absolute temperatures and temperature differences.
+const maxKelvin = 1e5
 
 func dimMessage(err error, q units.Quantity, d units.Dim) string {
 	if errors.Is(err, units.ErrNoUnit) {
@@ -153,6 +181,10 @@ func (p *params) temperature(name string) (units.Temperature, bool) {
 		return 0, false
 	}
 	t, err := q.Temperature()
+	if err == nil && float64(t) > maxKelvin {
+		p.unprocessable(name, q.String()+" is beyond any temperature this service computes")
+		return 0, false
+	}
 	if err != nil {
 		switch {
 		case errors.Is(err, units.ErrBelowZero):
@@ -175,6 +207,10 @@ func (p *params) difference(name string) (units.TemperatureDifference, bool) {
 		return 0, false
 	}
 	d, err := q.TemperatureDifference()
+	if err == nil && math.Abs(float64(d)) > maxKelvin {
+		p.unprocessable(name, q.String()+" is beyond any temperature difference this service computes")
+		return 0, false
+	}
 	if err != nil {
 		if q.Unit.Symbol == "" {
 			p.invalid(name, "a bare number is not a temperature difference: give its unit, such as \"35 K\"")

@@ -14,7 +14,8 @@ const (
 	errInvalid       errKind = iota // the request cannot be read
 	errNotFound                     // unknown route or material
 	errMethod                       // wrong method
-	errTooLarge                     // body or query over the limit
+	errTooLarge                     // body over the limit
+	errURITooLong                   // request URI over the limit
 	errMediaType                    // wrong content type
 	errUnprocessable                // read, but not computable
 	errUnauthorized                 // missing or wrong API key
@@ -31,6 +32,7 @@ var kindInfo = map[errKind]struct {
 	errNotFound:      {http.StatusNotFound, "not-found", "Not found"},
 	errMethod:        {http.StatusMethodNotAllowed, "method-not-allowed", "Method not allowed"},
 	errTooLarge:      {http.StatusRequestEntityTooLarge, "too-large", "Request too large"},
+	errURITooLong:    {http.StatusRequestURITooLong, "uri-too-long", "Request URI too long"},
 	errMediaType:     {http.StatusUnsupportedMediaType, "unsupported-media-type", "Unsupported content type"},
 	errUnprocessable: {http.StatusUnprocessableEntity, "not-computable", "The inputs cannot be computed"},
 	errUnauthorized:  {http.StatusUnauthorized, "unauthorized", "Unauthorized"},

@@ -75,6 +75,10 @@ func (p *params) strain(alphaName, materialName string, iv interval, ivOK bool, 
 		return coefficient{}, false
 	}
 	if hasAlpha {
+		if 1+alpha*float64(iv.dT) <= 0 {
+			p.unprocessable(alphaName, "with this temperature change the material would shrink to nothing: check alpha and the temperatures")
+			return coefficient{}, false
+		}
 		c := coefficient{Expansion: materials.Expansion{Strain: alpha * float64(iv.dT), AlphaMean: alpha, Kind: "constant"}, from: "request"}
 		if hasMat {
 			c.Warnings = append(c.Warnings, alphaName+" was given, so it was used instead of the catalogue coefficient of "+m.ID)
