@@ -10,9 +10,11 @@ import (
 	"mime"
 	"net/http"
 	"reflect"
+	"runtime"
 	"sort"
 	"strconv"
 	"strings"
+	"sync"
 	"unicode/utf8"
 
 	"github.com/gin-gonic/gin"
@@ -33,8 +35,9 @@ const (
 	// sent. Up to then a limit reached is answered with a 413 problem;
 	// after it only in-band (see batch).
 	batchHoldBack = 64 << 10
-	// batchFlushRows is how often, in rows, output sent so far is pushed
-	// to the network.
+	// batchFlushRows is how many rows are read, computed (on every core)
+	// and written together; after each such chunk, output already sent is
+	// pushed to the network.
 	batchFlushRows = 512
 	// batchStatusTrailer is the HTTP trailer that tells a program how the
 	// batch ended.
@@ -120,10 +123,11 @@ type batchRun struct {
 	// maxBytes is the body limit.
 	maxBytes int64
 
-	sink *batchSink
-	bw   *bufio.Writer
-	w    batchWriter
-	rows int // rows read
+	sink      *batchSink
+	bw        *bufio.Writer
+	w         batchWriter
+	rows      int    // rows read
+	requestID string // for the log of a failing row
 }
 
 // newBatchRun reads everything that decides the answer before a byte of
@@ -199,8 +203,9 @@ func (h *Handler) newBatchRun(c *gin.Context, spec batchSpec) (*batchRun, error)
 	r := &batchRun{
 		h: h, c: c, spec: spec, out: out, shared: shared,
 		inCSV: inCSV, outCSV: outCSV, maxRows: maxRows,
-		body:     &limitedBody{r: c.Request.Body, left: maxBytes, limit: maxBytes},
-		maxBytes: maxBytes,
+		body:      &limitedBody{r: c.Request.Body, left: maxBytes, limit: maxBytes},
+		maxBytes:  maxBytes,
+		requestID: c.Writer.Header().Get(requestIDHeader),
 	}
 	r.sink = &batchSink{c: c, contentType: contentTypes[out.format]}
 	r.bw = bufio.NewWriterSize(r.sink, batchHoldBack)
@@ -369,40 +374,93 @@ func (r *batchRun) serve() {
 
 	inputs := rd.columns()
 	first := true
+	chunk := make([]computed, 0, batchFlushRows)
 	for {
-		row, err := rd.next()
-		if err == io.EOF {
-			break
+		// Read a chunk of rows, compute them on every core, write them in
+		// order. A stop (unreadable body, row limit) ends the batch after
+		// the rows read before it.
+		chunk = chunk[:0]
+		var stop error
+		for len(chunk) < batchFlushRows {
+			row, err := rd.next()
+			if err == io.EOF {
+				break
+			}
+			if err != nil {
+				stop = err
+				break
+			}
+			r.rows++
+			if r.rows > r.maxRows {
+				stop = &stopError{errTooLarge, "over the limit of " + strconv.Itoa(r.maxRows) + " rows; split the batch"}
+				break
+			}
+			if first && inputs == nil && row.err == "" {
+				inputs = append([]string(nil), row.names...)
+			}
+			chunk = append(chunk, computed{row: row})
 		}
-		if err != nil {
-			r.finish(inputs, results, first, err)
-			return
-		}
-		r.rows++
-		if r.rows > r.maxRows {
-			r.finish(inputs, results, first, &stopError{errTooLarge, "over the limit of " + strconv.Itoa(r.maxRows) + " rows; split the batch"})
+		if len(chunk) == 0 {
+			r.finish(inputs, results, first, stop)
 			return
 		}
 		if first {
-			if inputs == nil && row.err == "" {
-				inputs = append([]string(nil), row.names...)
-			}
 			if err := r.w.header(inputs, results); err != nil {
 				return
 			}
 			first = false
 		}
-		items, warnings, msg := r.compute(row, inputs)
-		if err := r.w.row(row, items, r.spec.fields, warnings, msg); err != nil {
-			return // the client went away
+		r.computeAll(chunk, inputs)
+		for _, c := range chunk {
+			if err := r.w.row(c.row, c.items, r.spec.fields, c.warnings, c.msg); err != nil {
+				return // the client went away
+			}
 		}
-		if r.rows%batchFlushRows == 0 && r.sink.committed {
+		if r.sink.committed {
 			if r.flush() != nil {
 				return
 			}
 		}
+		if stop != nil || len(chunk) < batchFlushRows {
+			r.finish(inputs, results, false, stop)
+			return
+		}
 	}
-	r.finish(inputs, results, first, nil)
+}
+
+// computed is one row and its answer.
+type computed struct {
+	row      *batchRow
+	items    []resultItem
+	warnings []string
+	msg      string
+}
+
+// computeAll computes a chunk of rows, spread over the cores; the rows
+// are independent and the calculations pure.
+func (r *batchRun) computeAll(chunk []computed, columns []string) {
+	workers := min(runtime.GOMAXPROCS(0), 4)
+	if workers < 2 || len(chunk) < 64 {
+		for i := range chunk {
+			c := &chunk[i]
+			c.items, c.warnings, c.msg = r.compute(c.row, columns)
+		}
+		return
+	}
+	var wg sync.WaitGroup
+	per := (len(chunk) + workers - 1) / workers
+	for w := 0; w < workers; w++ {
+		part := chunk[min(w*per, len(chunk)):min((w+1)*per, len(chunk))]
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for i := range part {
+				c := &part[i]
+				c.items, c.warnings, c.msg = r.compute(c.row, columns)
+			}
+		}()
+	}
+	wg.Wait()
 }
 
 // finish ends the answer: normally, or stopped by err. A stop before the
@@ -509,7 +567,7 @@ func (r *batchRun) call(p *params) (resp *Response, err error) {
 	defer func() {
 		if v := recover(); v != nil {
 			r.h.log.Error("panic in batch row", zap.Any("panic", v), zap.String("calculation", r.spec.name),
-				zap.Int("row", r.rows), zap.String("request_id", r.c.Writer.Header().Get(requestIDHeader)))
+				zap.String("request_id", r.requestID))
 			resp, err = nil, errors.New("panic")
 		}
 	}()
