@@ -161,7 +161,7 @@ func (h *Handler) newBatchRun(c *gin.Context, spec batchSpec) (*batchRun, error)
 	}
 	shared := map[string]raw{}
 	for k, v := range vals {
-		if !qp.used[k] && k != apiKeyParam {
+		if !qp.isUsed(k) && k != apiKeyParam {
 			shared[k] = v
 		}
 	}
@@ -517,7 +517,6 @@ func (r *batchRun) compute(row *batchRow, columns []string) (items []resultItem,
 	if len(row.names) == 0 {
 		return nil, nil, "empty row"
 	}
-	vals := make(map[string]raw, len(row.vals)+len(r.shared))
 	for _, n := range row.names {
 		if isOutput(n, r.spec.fields) {
 			return nil, nil, "parameter " + strconv.Quote(n) + ": output options go in the query string of the batch, for every row"
@@ -525,7 +524,6 @@ func (r *batchRun) compute(row *batchRow, columns []string) (items []resultItem,
 		if _, dup := r.shared[n]; dup {
 			return nil, nil, "parameter " + strconv.Quote(n) + " given in both the query and the row"
 		}
-		vals[n] = row.vals[n]
 	}
 	if r.outCSV && !r.inCSV {
 		for _, n := range row.names {
@@ -534,10 +532,11 @@ func (r *batchRun) compute(row *batchRow, columns []string) (items []resultItem,
 			}
 		}
 	}
+	// The row's own map takes the shared parameters: it serves this row only.
 	for k, v := range r.shared {
-		vals[k] = v
+		row.vals[k] = v
 	}
-	p := newParams(vals, r.h.cat)
+	p := newParams(row.vals, r.h.cat)
 	resp, err := r.call(p)
 	if err != nil {
 		return nil, nil, problemOf(err, "").Detail
@@ -788,66 +787,89 @@ func cellText(v raw) string {
 
 // csvRowWriter writes rows as CSV, with CRLF line ends like format=csv.
 type csvRowWriter struct {
-	w      *csv.Writer
+	w      *bufio.Writer
 	width  int // columns
 	inputs []string
-	rec    []string
-	num    []byte
+	buf    []byte
 }
 
-func newCSVRowWriter(w io.Writer) *csvRowWriter {
-	cw := csv.NewWriter(w)
-	cw.UseCRLF = true
-	return &csvRowWriter{w: cw}
+func newCSVRowWriter(w *bufio.Writer) *csvRowWriter {
+	return &csvRowWriter{w: w}
 }
 
 func (w *csvRowWriter) header(inputs, results []string) error {
 	w.inputs = inputs
 	w.width = len(inputs) + len(results) + 2
-	rec := make([]string, 0, w.width)
-	rec = append(rec, inputs...)
-	rec = append(rec, results...)
-	rec = append(rec, "warnings", "error")
-	w.rec = rec
-	return w.w.Write(rec)
+	b := w.buf[:0]
+	for i, c := range append(append(append([]string(nil), inputs...), results...), "warnings", "error") {
+		if i > 0 {
+			b = append(b, ',')
+		}
+		b = appendCSVField(b, c)
+	}
+	return w.write(b)
 }
 
 func (w *csvRowWriter) row(in *batchRow, res []resultItem, fields []resultField, warnings []string, errMsg string) error {
-	rec := w.rec[:0]
-	for _, n := range w.inputs {
-		s := ""
-		if v, ok := in.vals[n]; ok {
-			s = cellText(v)
+	b := w.buf[:0]
+	for i, n := range w.inputs {
+		if i > 0 {
+			b = append(b, ',')
 		}
-		rec = append(rec, s)
+		if v, ok := in.vals[n]; ok {
+			b = appendCSVField(b, cellText(v))
+		}
 	}
 	j := 0
-	for _, f := range fields {
-		s := ""
+	for i, f := range fields {
+		if i > 0 || len(w.inputs) > 0 {
+			b = append(b, ',')
+		}
 		if j < len(res) && res[j].name == f.name {
-			w.num = units.AppendNumber(w.num[:0], res[j].value)
-			s = string(w.num)
+			b = units.AppendNumber(b, res[j].value) // a number never needs quotes
 			j++
 		}
-		rec = append(rec, s)
 	}
-	rec = append(rec, strings.Join(warnings, "; "), errMsg)
-	w.rec = rec
-	return w.w.Write(rec)
+	b = append(b, ',')
+	b = appendCSVField(b, strings.Join(warnings, "; "))
+	b = append(b, ',')
+	b = appendCSVField(b, errMsg)
+	return w.write(b)
 }
 
 func (w *csvRowWriter) stop(msg string) error {
-	rec := w.rec[:0]
-	for len(rec) < w.width-1 {
-		rec = append(rec, "")
+	b := w.buf[:0]
+	for i := 0; i < w.width-1; i++ {
+		b = append(b, ',')
 	}
-	rec = append(rec, msg)
-	return w.w.Write(rec)
+	b = appendCSVField(b, msg)
+	return w.write(b)
 }
 
-func (w *csvRowWriter) end() error {
-	w.w.Flush()
-	return w.w.Error()
+// write ends the record b with CRLF (RFC 4180) and writes it.
+func (w *csvRowWriter) write(b []byte) error {
+	b = append(b, '\r', '\n')
+	w.buf = b
+	_, err := w.w.Write(b)
+	return err
+}
+
+func (w *csvRowWriter) end() error { return nil }
+
+// appendCSVField appends one CSV field, quoted as encoding/csv quotes:
+// when it holds a comma, a quote, a line break or starts with a space.
+func appendCSVField(b []byte, s string) []byte {
+	if s == "" || !(strings.ContainsAny(s, ",\"\r\n") || s[0] == ' ' || s[0] == '\t' || s == `\.`) {
+		return append(b, s...)
+	}
+	b = append(b, '"')
+	for i := 0; i < len(s); i++ {
+		if s[i] == '"' {
+			b = append(b, '"')
+		}
+		b = append(b, s[i])
+	}
+	return append(b, '"')
 }
 
 // jsonRowWriter writes rows as a JSON array of flat objects with the

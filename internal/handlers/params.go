@@ -16,14 +16,21 @@ import (
 // the response names all bad fields at once.
 type params struct {
 	vals   map[string]raw
-	used   map[string]bool
+	used   []string // names read
 	errs   map[errKind][]FieldError
 	inputs Inputs
 	cat    *materials.Catalogue
+	// usedBuf and inputsBuf hold used and inputs for a typical request
+	// without further allocation.
+	usedBuf   [16]string
+	inputsBuf [10]Input
 }
 
 func newParams(vals map[string]raw, cat *materials.Catalogue) *params {
-	return &params{vals: vals, used: make(map[string]bool, len(vals)), cat: cat}
+	p := &params{vals: vals, cat: cat}
+	p.used = p.usedBuf[:0]
+	p.inputs = p.inputsBuf[:0]
+	return p
 }
 
 // fail records a problem with the named parameter.
@@ -50,9 +57,27 @@ func (p *params) has(name string) bool {
 func (p *params) take(name string) (raw, bool) {
 	r, ok := p.vals[name]
 	if ok {
-		p.used[name] = true
+		p.markUsed(name)
 	}
 	return r, ok
+}
+
+// markUsed records that a parameter was read.
+func (p *params) markUsed(name string) {
+	if !p.isUsed(name) {
+		p.used = append(p.used, name)
+	}
+}
+
+// isUsed reports whether a parameter was read. A request has a handful
+// of parameters: a list is cheaper than a map.
+func (p *params) isUsed(name string) bool {
+	for _, u := range p.used {
+		if u == name {
+			return true
+		}
+	}
+	return false
 }
 
 // ok reports whether no problem has been recorded so far.
@@ -70,13 +95,13 @@ func (p *params) ok() bool {
 func (p *params) done() error {
 	var unknown []string
 	for k := range p.vals {
-		if !p.used[k] {
+		if !p.isUsed(k) {
 			unknown = append(unknown, k)
 		}
 	}
 	sort.Strings(unknown)
 	for _, k := range unknown {
-		p.used[k] = true
+		p.markUsed(k)
 		p.invalid(k, "unknown parameter")
 	}
 	return fieldsError(p.errs)
