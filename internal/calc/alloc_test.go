@@ -68,6 +68,35 @@ func TestAllocsCalculationCore(t *testing.T) {
 			}
 			sink += rho
 		},
+		// Differential movement, bonded layers, restraint, joints, bridges.
+		"DifferentialMovement": func() { sink += calc.DifferentialMovement(6, 1.06e-3, 1.5e-4) },
+		"Bilayer": func() {
+			b := calc.Bilayer{ThicknessAM: 5e-4, ThicknessBM: 5e-4, ModulusAPa: 170e9, ModulusBPa: 170e9}
+			k := b.Curvature(8.5e-4)
+			sink += k + b.Stresses(k).AInterface + calc.CantileverTip(k, 0.06) + calc.MidspanRise(k, 0.06)
+		},
+		"Stoney": func() {
+			sink += calc.StoneyStress(0.5, 1e-6, 5e-4, 130e9, 0.28) + calc.StoneyCurvature(1e8, 1e-6, 5e-4, 130e9, 0.28)
+		},
+		"Restraint": func() {
+			r := calc.EffectiveRestraint(5e8, 210e9, 3.6e-3, 6)
+			sink += calc.Restraint(4.8e-4, 210e9, r, 6).StressPa + calc.CriticalDeltaT(12e-6, 0.057, 1, 6, r)
+		},
+		"EulerLoad": func() { sink += calc.EulerLoad(210e9, 1.2e-5, 0.7, 6) + calc.GradientCurvature(12e-6, 20, 5, 0.4) },
+		"JointAt": func() {
+			j := calc.Joint{LengthM: 60, AlphaLow: 12e-6, AlphaHigh: 12e-6, TMin: units.Celsius(-36), TMax: units.Celsius(59)}
+			sink += j.At(units.Celsius(12), 0.05).GapAtTMaxM + j.ForMinGap(units.Celsius(12), 0.02).GapInstallM
+		},
+		"SealantWidth": func() {
+			sink += calc.SealantWidth(4.2e-3, 2.8e-3, calc.Sealant{Extension: 0.25, Compression: 0.25}, 3e-3)
+		},
+		"EN1991Bridge": func() {
+			b, err := calc.EN1991Bridge(units.Celsius(-20), units.Celsius(35), 2, units.Celsius(10), false, false)
+			if err != nil {
+				t.Fatal(err)
+			}
+			sink += float64(b.TeMax)
+		},
 		"WaterDensityOutOfRange": func() {
 			if _, err := calc.WaterDensity(units.Celsius(200)); err == nil {
 				t.Fatal("WaterDensity(200 degC) err = nil, want ErrOutOfRange")
