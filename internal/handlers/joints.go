@@ -602,22 +602,8 @@ func degCText(t units.Temperature) string { return formatRounded(t.Celsius()) + 
 func (p *params) readRowUnits() map[string]units.Unit {
 	var m map[string]units.Unit
 	for _, f := range fieldsOf(reflectType[ScheduleRow]()) {
-		name := f.name + "_unit"
-		s, ok := p.text(name)
+		u, ok := p.resultUnit(f)
 		if !ok {
-			continue
-		}
-		u, err := units.ParseUnit(s)
-		if err != nil {
-			p.invalid(name, err.Error())
-			continue
-		}
-		if !f.kind.Accepts(u) {
-			want := f.kind.Dim.String()
-			if f.kind.Absolute {
-				want = "temperature scale (degC, degF, K, degR)"
-			}
-			p.invalid(name, strconv.Quote(s)+" is not a unit of "+want+", which "+f.name+" is")
 			continue
 		}
 		if m == nil {

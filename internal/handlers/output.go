@@ -76,26 +76,38 @@ func readOutput(p *params, fields []resultField, formats ...string) *outputOptio
 			// Not a result: leave it for the calculation (or the unknown check).
 			continue
 		}
-		s, _ := p.text(name)
-		u, err := units.ParseUnit(s)
-		if err != nil {
-			p.invalid(name, err.Error())
-			continue
-		}
-		if !f.kind.Accepts(u) {
-			want := f.kind.Dim.String()
-			if f.kind.Absolute {
-				want = "temperature scale (degC, degF, K, degR)"
+		if u, ok := p.resultUnit(*f); ok {
+			if o.overrides == nil {
+				o.overrides = map[string]units.Unit{}
 			}
-			p.invalid(name, strconv.Quote(s)+" is not a unit of "+want+", which "+rname+" is")
-			continue
+			o.overrides[rname] = u
 		}
-		if o.overrides == nil {
-			o.overrides = map[string]units.Unit{}
-		}
-		o.overrides[rname] = u
 	}
 	return o
+}
+
+// resultUnit reads the parameter <result>_unit, the unit asked for the
+// result f, and checks that it can express f.
+func (p *params) resultUnit(f resultField) (units.Unit, bool) {
+	name := f.name + "_unit"
+	s, ok := p.text(name)
+	if !ok {
+		return units.Unit{}, false
+	}
+	u, err := units.ParseUnit(s)
+	if err != nil {
+		p.invalid(name, err.Error())
+		return units.Unit{}, false
+	}
+	if !f.kind.Accepts(u) {
+		want := f.kind.Dim.String()
+		if f.kind.Absolute {
+			want = "temperature scale (degC, degF, K, degR)"
+		}
+		p.invalid(name, strconv.Quote(s)+" is not a unit of "+want+", which "+f.name+" is")
+		return units.Unit{}, false
+	}
+	return u, true
 }
 
 func (o *outputOptions) unitFor(f resultField) units.Unit {
