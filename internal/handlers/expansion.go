@@ -293,6 +293,9 @@ func (h *Handler) volume(p *params) (*Response, error) {
 			break
 		}
 		if hasBeta {
+			if liquid == nil && p.has("material") {
+				liquid, _ = p.material("material") // a solid's entry: noted, not used
+			}
 			if liquid != nil {
 				resp.Warnings = append(resp.Warnings, "beta was given, so it was used instead of the catalogue data of "+liquid.ID)
 			}

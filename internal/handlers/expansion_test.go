@@ -205,3 +205,16 @@ func TestContractErrors(t *testing.T) {
 		})
 	}
 }
+
+func TestVolumeBetaWinsOverMaterial(t *testing.T) {
+	r := newTestHandler(t).Router()
+	// dV = beta V dT by definition of the mean volumetric coefficient
+	// (common practice, no published source): 1 m3 x 2e-4 x 10 K = 2 L.
+	d := decode(t, do(t, r, "GET", "/v1/expansion/volume?"+q("volume", "1 m3", "beta", "2e-4/K", "material", "structural-steel", "delta_t", "10 K"), "", ""))
+	if got := d.Results["delta_volume"].Value; !closeTo(got, 2, 1e-12) {
+		t.Errorf("delta_volume = %v L, want 2", got)
+	}
+	if len(d.Warnings) == 0 {
+		t.Error("no warning that beta was used instead of the catalogue")
+	}
+}
