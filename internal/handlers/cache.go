@@ -83,7 +83,8 @@ func (h *Handler) etag(c *gin.Context) string {
 	part(r.URL.Path)
 	for _, k := range keys {
 		part(k)
-		part(strconv.Itoa(len(q[k])))
+		b = strconv.AppendInt(b, int64(len(q[k])), 10) // the count of values, then each
+		b = append(b, ';')
 		for _, v := range q[k] {
 			part(v)
 		}

@@ -230,7 +230,7 @@ func (p *params) percentage(name string, limit float64) (float64, bool) {
 		pc = q.SI() * 100
 	}
 	v := Number(pc)
-	p.inputs = append(p.inputs, Input{Name: name, Value: &v, Unit: "%"})
+	p.inputs = append(p.inputs, Input{Name: name, Value: v, Unit: "%", hasValue: true})
 	switch {
 	case !finite(pc) || pc <= 0:
 		p.unprocessable(name, "must be greater than zero")

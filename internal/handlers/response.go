@@ -53,11 +53,13 @@ type Response struct {
 // it, a number, or a text, and for coefficients and moduli where the
 // value came from.
 type Input struct {
-	Name  string  `json:"-"`
-	Value *Number `json:"value,omitempty" swaggertype:"number"`
-	Unit  string  `json:"unit,omitempty"`
-	Text  string  `json:"text,omitempty"`
-	From  string  `json:"from,omitempty"`
+	Name  string `json:"-"`
+	Value Number `json:"value,omitempty" swaggertype:"number"`
+	Unit  string `json:"unit,omitempty"`
+	Text  string `json:"text,omitempty"`
+	From  string `json:"from,omitempty"`
+	// hasValue tells a zero value from none.
+	hasValue bool
 }
 
 // Inputs are the echoed request parameters, in the order read. They are
@@ -66,12 +68,12 @@ type Inputs []Input
 
 func (in *Inputs) addQuantity(name string, q units.Quantity) {
 	v := Number(q.Value)
-	*in = append(*in, Input{Name: name, Value: &v, Unit: q.Unit.Symbol})
+	*in = append(*in, Input{Name: name, Value: v, Unit: q.Unit.Symbol, hasValue: true})
 }
 
 func (in *Inputs) addNumber(name string, x float64) {
 	v := Number(x)
-	*in = append(*in, Input{Name: name, Value: &v, Unit: "1"})
+	*in = append(*in, Input{Name: name, Value: v, Unit: "1", hasValue: true})
 }
 
 func (in *Inputs) addText(name, s string) {
@@ -82,7 +84,7 @@ func (in *Inputs) addText(name, s string) {
 // send, such as a coefficient taken from the catalogue.
 func (in *Inputs) addUsed(name string, v float64, unit, from string) {
 	n := Number(v)
-	*in = append(*in, Input{Name: name, Value: &n, Unit: unit, From: from})
+	*in = append(*in, Input{Name: name, Value: n, Unit: unit, From: from, hasValue: true})
 }
 
 // MarshalJSON writes the inputs as an object in the order read.
@@ -108,9 +110,9 @@ func (in Inputs) appendJSON(b []byte) []byte {
 			b = append(b, '"', ':')
 			sep = true
 		}
-		if x.Value != nil {
+		if x.hasValue {
 			field("value")
-			b = units.AppendNumber(b, float64(*x.Value))
+			b = units.AppendNumber(b, float64(x.Value))
 		}
 		if x.Unit != "" {
 			field("unit")
