@@ -372,46 +372,48 @@ func (r *batchRun) serve() {
 		r.w = jw
 	}
 
-	inputs := rd.columns()
-	first := true
-	chunk := make([]computed, 0, batchFlushRows)
-	for {
-		// Read a chunk of rows, compute them on every core, write them in
-		// order. A stop (unreadable body, row limit) ends the batch after
-		// the rows read before it.
-		chunk = chunk[:0]
-		var stop error
-		for len(chunk) < batchFlushRows {
-			row, err := rd.next()
-			if err == io.EOF {
-				break
+	// Three stages overlap: a goroutine reads chunks of rows, a second
+	// computes each chunk on every core, and this one writes them in
+	// order. A stop (unreadable body, row limit) ends the batch after the
+	// rows read before it.
+	quit := make(chan struct{})
+	chunks := make(chan batchChunk, 1)
+	done := make(chan batchChunk, 1)
+	var wg sync.WaitGroup
+	wg.Add(2)
+	go func() {
+		defer wg.Done()
+		defer close(chunks)
+		r.read(rd, rd.columns(), chunks, quit)
+	}()
+	go func() {
+		defer wg.Done()
+		defer close(done)
+		for ch := range chunks {
+			r.computeAll(ch.rows, ch.inputs)
+			select {
+			case done <- ch:
+			case <-quit:
+				return
 			}
-			if err != nil {
-				stop = err
-				break
-			}
-			r.rows++
-			if r.rows > r.maxRows {
-				stop = &stopError{errTooLarge, "over the limit of " + strconv.Itoa(r.maxRows) + " rows; split the batch"}
-				break
-			}
-			if first && inputs == nil && row.err == "" {
-				inputs = append([]string(nil), row.names...)
-			}
-			chunk = append(chunk, computed{row: row})
 		}
-		if len(chunk) == 0 {
-			r.finish(inputs, results, first, stop)
+	}()
+	defer wg.Wait() // no stage outlives the handler
+	defer close(quit)
+
+	first := true
+	for ch := range done {
+		if len(ch.rows) == 0 {
+			r.finish(ch.inputs, results, first, ch.stop)
 			return
 		}
 		if first {
-			if err := r.w.header(inputs, results); err != nil {
+			if err := r.w.header(ch.inputs, results); err != nil {
 				return
 			}
 			first = false
 		}
-		r.computeAll(chunk, inputs)
-		for _, c := range chunk {
+		for _, c := range ch.rows {
 			if err := r.w.row(c.row, c.items, r.spec.fields, c.warnings, c.msg); err != nil {
 				return // the client went away
 			}
@@ -421,8 +423,54 @@ func (r *batchRun) serve() {
 				return
 			}
 		}
-		if stop != nil || len(chunk) < batchFlushRows {
-			r.finish(inputs, results, false, stop)
+		if ch.last {
+			r.finish(ch.inputs, results, false, ch.stop)
+			return
+		}
+	}
+}
+
+// batchChunk is a run of rows read together, with the input columns
+// known when it was read and, on the last chunk, why the batch ended.
+type batchChunk struct {
+	rows   []computed
+	inputs []string
+	last   bool  // no chunk follows
+	stop   error // the batch stopped early after these rows; nil at the end of the body
+}
+
+// read reads the body in chunks of batchFlushRows rows and sends them
+// until the body ends, a stop, or quit.
+func (r *batchRun) read(rd batchReader, inputs []string, out chan<- batchChunk, quit <-chan struct{}) {
+	for sent := false; ; sent = true {
+		ch := batchChunk{rows: make([]computed, 0, batchFlushRows)}
+		for len(ch.rows) < batchFlushRows {
+			row, err := rd.next()
+			if err == io.EOF {
+				ch.last = true
+				break
+			}
+			if err != nil {
+				ch.last, ch.stop = true, err
+				break
+			}
+			r.rows++
+			if r.rows > r.maxRows {
+				ch.last, ch.stop = true, &stopError{errTooLarge, "over the limit of " + strconv.Itoa(r.maxRows) + " rows; split the batch"}
+				break
+			}
+			if !sent && inputs == nil && row.err == "" {
+				inputs = append([]string(nil), row.names...)
+			}
+			ch.rows = append(ch.rows, computed{row: row})
+		}
+		ch.inputs = inputs
+		select {
+		case out <- ch:
+		case <-quit:
+			return
+		}
+		if ch.last {
 			return
 		}
 	}
