@@ -4,6 +4,7 @@ import (
 	"crypto/sha256"
 	"encoding/hex"
 	"net/http"
+	"net/url"
 	"slices"
 	"strconv"
 	"strings"
@@ -17,6 +18,12 @@ import (
 // to ask again is an upgrade: after one, the ETag changes and a
 // revalidation fetches the new answer.
 const cacheMaxAge = 300
+
+// The Cache-Control values of a calculation's GET.
+var (
+	cachePublic  = "public, max-age=" + strconv.Itoa(cacheMaxAge)
+	cachePrivate = "private, max-age=" + strconv.Itoa(cacheMaxAge)
+)
 
 // cache sets Cache-Control and ETag on GET requests of the /v1/ routes
 // (calculations, materials, units) and answers If-None-Match with 304
@@ -39,11 +46,11 @@ func (h *Handler) cache(c *gin.Context) {
 		return
 	}
 	tag := h.etag(c)
-	cc := "public, max-age=" + strconv.Itoa(cacheMaxAge)
+	cc := cachePublic
 	if h.opts.APIKeys != nil {
 		// A shared cache must not hand one key holder's answer to a
 		// caller without a key.
-		cc = "private, max-age=" + strconv.Itoa(cacheMaxAge)
+		cc = cachePrivate
 	}
 	hd := c.Writer.Header()
 	hd.Set("ETag", tag)
@@ -61,17 +68,28 @@ func (h *Handler) cache(c *gin.Context) {
 // etag derives the entity tag of a GET from what decides its body.
 func (h *Handler) etag(c *gin.Context) string {
 	r := c.Request
-	q := queryOf(c)
-	var names [16]string
-	keys := names[:0]
-	for k := range q {
-		if k != apiKeyParam {
-			keys = append(keys, k)
+	// The query's pairs, unescaped and sorted, so that neither the order
+	// nor the spelling (%20 or +) of the parameters matters; api_key
+	// never counts.
+	var pairs [24][2]string
+	ps := pairs[:0]
+	for rest := r.URL.RawQuery; rest != ""; {
+		var pair string
+		pair, rest, _ = strings.Cut(rest, "&")
+		k, v, _ := strings.Cut(pair, "=")
+		k, v = unescape(k), unescape(v)
+		if pair != "" && k != apiKeyParam {
+			ps = append(ps, [2]string{k, v})
 		}
 	}
-	slices.Sort(keys)
+	slices.SortFunc(ps, func(a, b [2]string) int {
+		if c := strings.Compare(a[0], b[0]); c != 0 {
+			return c
+		}
+		return strings.Compare(a[1], b[1])
+	})
 	// Every part is length-prefixed, so that no two requests share an
-	// encoding ("a=b&c" and "a=b%26c" differ).
+	// encoding.
 	var buf [512]byte
 	b := buf[:0]
 	part := func(s string) {
@@ -81,13 +99,9 @@ func (h *Handler) etag(c *gin.Context) string {
 	}
 	part(r.Method)
 	part(r.URL.Path)
-	for _, k := range keys {
-		part(k)
-		b = strconv.AppendInt(b, int64(len(q[k])), 10) // the count of values, then each
-		b = append(b, ';')
-		for _, v := range q[k] {
-			part(v)
-		}
+	for _, p := range ps {
+		part(p[0])
+		part(p[1])
 	}
 	part(h.opts.Version)
 	part(h.cat.Version)
@@ -163,3 +177,12 @@ func (w *cacheWriter) WriteString(s string) (int, error) {
 // Unwrap lets http.ResponseController reach the connection's writer (a
 // batch enables full duplex through it).
 func (w *cacheWriter) Unwrap() http.ResponseWriter { return w.ResponseWriter }
+
+// unescape decodes a query component, or leaves it as sent when it is
+// not valid escaping (the handler then refuses the request anyway).
+func unescape(s string) string {
+	if u, err := url.QueryUnescape(s); err == nil {
+		return u
+	}
+	return s
+}

@@ -7,7 +7,6 @@ package handlers
 import (
 	"encoding/json"
 	"net/http"
-	"net/url"
 	"reflect"
 	"sync/atomic"
 
@@ -152,7 +151,7 @@ func (h *Handler) calculation(spec calcSpec) gin.HandlerFunc {
 	fields := fieldsOf(reflect.TypeOf(spec.results))
 	return func(c *gin.Context) {
 		vals := make(map[string]raw, 8)
-		if errs := readQuery(queryOf(c), vals); len(errs) > 0 {
+		if errs := readQuery(c.Request.URL.Query(), vals); len(errs) > 0 {
 			h.problem(c, nil, newError(errInvalid, "invalid query string", errs...))
 			return
 		}
@@ -189,18 +188,6 @@ func (h *Handler) calculation(spec calcSpec) gin.HandlerFunc {
 		h.complete(resp, spec.name, p)
 		h.write(c, out, resp, items)
 	}
-}
-
-const queryKey = "query"
-
-// queryOf returns the request's query parameters, parsed once per request.
-func queryOf(c *gin.Context) url.Values {
-	if v, ok := c.Get(queryKey); ok {
-		return v.(url.Values)
-	}
-	q := c.Request.URL.Query()
-	c.Set(queryKey, q)
-	return q
 }
 
 // complete fills the parts of a response every calculation shares.

@@ -40,7 +40,9 @@ func newIDPrefix() string {
 func (h *Handler) requestID(c *gin.Context) {
 	id := c.GetHeader(requestIDHeader)
 	if !validRequestID(id) {
-		id = h.metrics.idPrefix + "-" + strconv.FormatUint(idCounter.Add(1), 36)
+		var buf [40]byte
+		b := append(append(buf[:0], h.metrics.idPrefix...), '-')
+		id = string(strconv.AppendUint(b, idCounter.Add(1), 36))
 	}
 	c.Header(requestIDHeader, id)
 	c.Next()
