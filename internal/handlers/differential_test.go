@@ -46,13 +46,7 @@ func TestDifferentialHTTP(t *testing.T) {
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
 			d := decode(t, do(t, r, "GET", "/v1/differential?"+tt.query, "", ""))
-			got := d.Results[tt.result]
-			if !closeTo(got.Value, tt.want, 1e-9) || got.Unit != tt.unit {
-				t.Errorf("%s = %v %s, want %v %s", tt.result, got.Value, got.Unit, tt.want, tt.unit)
-			}
-			if len(d.Cautions) < 4 || d.Method == "" || len(d.References) == 0 {
-				t.Errorf("response lacks method, references or cautions: %+v", d)
-			}
+			checkResult(t, d, tt.result, tt.want, tt.unit, 1e-9, 4)
 		})
 	}
 }
@@ -141,13 +135,7 @@ func TestRestraintHTTP(t *testing.T) {
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
 			d := decode(t, do(t, r, "GET", "/v1/restraint?"+tt.query, "", ""))
-			got := d.Results[tt.result]
-			if !closeTo(got.Value, tt.want, 1e-9) || got.Unit != tt.unit {
-				t.Errorf("%s = %v %s, want %v %s", tt.result, got.Value, got.Unit, tt.want, tt.unit)
-			}
-			if len(d.Cautions) < 4 || d.Method == "" || len(d.References) == 0 {
-				t.Errorf("response lacks method, references or cautions: %+v", d)
-			}
+			checkResult(t, d, tt.result, tt.want, tt.unit, 1e-9, 4)
 		})
 	}
 }

@@ -43,13 +43,7 @@ func TestLinearHTTP(t *testing.T) {
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
 			d := decode(t, do(t, r, "GET", "/v1/expansion/linear?"+tt.query, "", ""))
-			got := d.Results[tt.result]
-			if !closeTo(got.Value, tt.want, 1e-11) || got.Unit != tt.unit {
-				t.Errorf("%s = %v %s, want %v %s", tt.result, got.Value, got.Unit, tt.want, tt.unit)
-			}
-			if len(d.Cautions) < 3 || d.Method == "" || len(d.References) == 0 {
-				t.Errorf("response lacks method, references or cautions: %+v", d)
-			}
+			checkResult(t, d, tt.result, tt.want, tt.unit, 1e-11, 3)
 		})
 	}
 }

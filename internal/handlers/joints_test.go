@@ -75,13 +75,8 @@ type jv struct {
 
 func readJointBody(t testing.TB, w *httptest.ResponseRecorder) jointBody {
 	t.Helper()
-	if w.Code != http.StatusOK {
-		t.Fatalf("status %d: %s", w.Code, w.Body.String())
-	}
 	var b jointBody
-	if err := json.Unmarshal(w.Body.Bytes(), &b); err != nil {
-		t.Fatalf("decode: %v: %s", err, w.Body.String())
-	}
+	decodeOK(t, w, &b)
 	return b
 }
 

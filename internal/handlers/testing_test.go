@@ -59,14 +59,33 @@ type decoded struct {
 
 func decode(t testing.TB, w *httptest.ResponseRecorder) decoded {
 	t.Helper()
+	var d decoded
+	decodeOK(t, w, &d)
+	return d
+}
+
+// decodeOK checks for a 200 and decodes its JSON body into v.
+func decodeOK(t testing.TB, w *httptest.ResponseRecorder, v any) {
+	t.Helper()
 	if w.Code != http.StatusOK {
 		t.Fatalf("status %d: %s", w.Code, w.Body.String())
 	}
-	var d decoded
-	if err := json.Unmarshal(w.Body.Bytes(), &d); err != nil {
+	if err := json.Unmarshal(w.Body.Bytes(), v); err != nil {
 		t.Fatalf("decode: %v: %s", err, w.Body.String())
 	}
-	return d
+}
+
+// checkResult checks one result of a calculation's answer, and that the
+// answer carries its method, references and at least minCautions cautions.
+func checkResult(t testing.TB, d decoded, name string, want float64, unit string, rel float64, minCautions int) {
+	t.Helper()
+	got := d.Results[name]
+	if !closeTo(got.Value, want, rel) || got.Unit != unit {
+		t.Errorf("%s = %v %s, want %v %s", name, got.Value, got.Unit, want, unit)
+	}
+	if len(d.Cautions) < minCautions || d.Method == "" || len(d.References) == 0 {
+		t.Errorf("response lacks method, references or cautions: %+v", d)
+	}
 }
 
 func decodeProblem(t testing.TB, w *httptest.ResponseRecorder) Problem {
