@@ -216,15 +216,7 @@ func TestDifferentialRestraintErrors(t *testing.T) {
 				t.Fatalf("status %d, want %d: %s", w.Code, tt.status, w.Body.String())
 			}
 			p := decodeProblem(t, w)
-			got := map[string]bool{}
-			for _, e := range p.Errors {
-				got[e.Parameter] = true
-			}
-			for _, name := range tt.params {
-				if !got[name] {
-					t.Errorf("problem does not name %q: %+v", name, p.Errors)
-				}
-			}
+			checkNames(t, p, tt.params...)
 		})
 	}
 }

@@ -187,15 +187,7 @@ func TestContractErrors(t *testing.T) {
 			if p.Status != tt.status || p.Type == "" || p.Title == "" || p.Detail == "" {
 				t.Errorf("incomplete problem %+v", p)
 			}
-			got := map[string]bool{}
-			for _, e := range p.Errors {
-				got[e.Parameter] = true
-			}
-			for _, name := range tt.params {
-				if !got[name] {
-					t.Errorf("problem does not name %q: %+v", name, p.Errors)
-				}
-			}
+			checkNames(t, p, tt.params...)
 		})
 	}
 }

@@ -99,3 +99,17 @@ func decodeProblem(t testing.TB, w *httptest.ResponseRecorder) Problem {
 	}
 	return p
 }
+
+// checkNames checks that the problem names every one of the parameters.
+func checkNames(t testing.TB, p Problem, names ...string) {
+	t.Helper()
+	named := map[string]bool{}
+	for _, e := range p.Errors {
+		named[e.Parameter] = true
+	}
+	for _, name := range names {
+		if !named[name] {
+			t.Errorf("problem does not name %q: %+v", name, p.Errors)
+		}
+	}
+}
