@@ -123,6 +123,7 @@ type batchRun struct {
 	// maxBytes is the body limit.
 	maxBytes int64
 
+	free      chan batchChunk // written chunks, back to the reader
 	sink      *batchSink
 	bw        *bufio.Writer
 	w         batchWriter
@@ -134,7 +135,7 @@ type batchRun struct {
 // the body is read: the query, the content types and the limits.
 func (h *Handler) newBatchRun(c *gin.Context, spec batchSpec) (*batchRun, error) {
 	vals := make(map[string]raw, 8)
-	if errs := readQuery(c.Request.URL.Query(), vals); len(errs) > 0 {
+	if errs := readQuery(c.Request.URL.RawQuery, vals); len(errs) > 0 {
 		return nil, newError(errInvalid, "invalid query string", errs...)
 	}
 	qp := newParams(vals, h.cat)
@@ -144,7 +145,8 @@ func (h *Handler) newBatchRun(c *gin.Context, spec batchSpec) (*batchRun, error)
 			qp.invalid(n, "not used by a batch: every result is a column, and errors go in the error column")
 		}
 	}
-	out := readOutput(qp, spec.fields)
+	out := new(outputOptions)
+	readOutput(out, qp, spec.fields)
 	format := ""
 	if qp.has("format") {
 		switch out.format {
@@ -206,6 +208,7 @@ func (h *Handler) newBatchRun(c *gin.Context, spec batchSpec) (*batchRun, error)
 		body:      &limitedBody{r: c.Request.Body, left: maxBytes, limit: maxBytes},
 		maxBytes:  maxBytes,
 		requestID: c.Writer.Header().Get(requestIDHeader),
+		free:      make(chan batchChunk, 2),
 	}
 	r.sink = &batchSink{c: c, contentType: contentTypes[out.format]}
 	r.bw = bufio.NewWriterSize(r.sink, batchHoldBack)
@@ -327,7 +330,8 @@ type batchReader interface {
 	// columns are the input columns known before the first row (a CSV
 	// header); nil for JSON.
 	columns() []string
-	next() (*batchRow, error)
+	// next fills row, which is empty, with the next row.
+	next(row *batchRow) error
 }
 
 // batchWriter writes rows in one form.
@@ -418,6 +422,7 @@ func (r *batchRun) serve() {
 				return // the client went away
 			}
 		}
+		r.recycle(ch)
 		if r.sink.committed {
 			if r.flush() != nil {
 				return
@@ -439,30 +444,75 @@ type batchChunk struct {
 	stop   error // the batch stopped early after these rows; nil at the end of the body
 }
 
+// emptyChunk returns a chunk written before, or a new one. Written chunks
+// come back through r.free with their rows, so that a batch allocates its
+// rows, their maps and their results once, not once per row.
+func (r *batchRun) emptyChunk() batchChunk {
+	select {
+	case ch := <-r.free:
+		ch.rows = ch.rows[:0]
+		ch.last, ch.stop = false, nil
+		return ch
+	default:
+		return batchChunk{rows: make([]computed, 0, batchFlushRows)}
+	}
+}
+
+// recycle offers a written chunk back to the reader.
+func (r *batchRun) recycle(ch batchChunk) {
+	select {
+	case r.free <- ch:
+	default:
+	}
+}
+
+// grow adds an empty row to the chunk, reusing the one a recycled chunk
+// had in its place, and returns it.
+func (ch *batchChunk) grow() *computed {
+	ch.rows = ch.rows[:len(ch.rows)+1]
+	c := &ch.rows[len(ch.rows)-1]
+	if c.row == nil {
+		c.row = &batchRow{vals: make(map[string]raw, 8)}
+	}
+	c.row.reset()
+	c.items, c.warnings, c.msg = c.items[:0], nil, ""
+	return c
+}
+
+// reset empties a row for a reader to fill, keeping its map and names.
+func (row *batchRow) reset() {
+	if row.vals == nil {
+		row.vals = make(map[string]raw, 8)
+	}
+	clear(row.vals)
+	row.names, row.err = row.names[:0], ""
+}
+
 // read reads the body in chunks of batchFlushRows rows and sends them
 // until the body ends, a stop, or quit.
 func (r *batchRun) read(rd batchReader, inputs []string, out chan<- batchChunk, quit <-chan struct{}) {
 	for sent := false; ; sent = true {
-		ch := batchChunk{rows: make([]computed, 0, batchFlushRows)}
+		ch := r.emptyChunk()
 		for len(ch.rows) < batchFlushRows {
-			row, err := rd.next()
-			if err == io.EOF {
+			row := ch.grow().row
+			err := rd.next(row)
+			switch {
+			case err == io.EOF:
 				ch.last = true
-				break
-			}
-			if err != nil {
+			case err != nil:
 				ch.last, ch.stop = true, err
-				break
-			}
-			r.rows++
-			if r.rows > r.maxRows {
+			case r.rows == r.maxRows:
 				ch.last, ch.stop = true, &stopError{errTooLarge, "over the limit of " + strconv.Itoa(r.maxRows) + " rows; split the batch"}
+			default:
+				r.rows++
+			}
+			if ch.last {
+				ch.rows = ch.rows[:len(ch.rows)-1] // not a row of the answer
 				break
 			}
 			if !sent && inputs == nil && row.err == "" {
 				inputs = append([]string(nil), row.names...)
 			}
-			ch.rows = append(ch.rows, computed{row: row})
 		}
 		ch.inputs = inputs
 		select {
@@ -489,9 +539,9 @@ type computed struct {
 func (r *batchRun) computeAll(chunk []computed, columns []string) {
 	workers := min(runtime.GOMAXPROCS(0), 4)
 	if workers < 2 || len(chunk) < 64 {
+		var p params
 		for i := range chunk {
-			c := &chunk[i]
-			c.items, c.warnings, c.msg = r.compute(c.row, columns)
+			r.compute(&chunk[i], columns, &p)
 		}
 		return
 	}
@@ -502,9 +552,9 @@ func (r *batchRun) computeAll(chunk []computed, columns []string) {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
+			var p params // one per worker, reset for each row
 			for i := range part {
-				c := &part[i]
-				c.items, c.warnings, c.msg = r.compute(c.row, columns)
+				r.compute(&part[i], columns, &p)
 			}
 		}()
 	}
@@ -530,11 +580,7 @@ func (r *batchRun) finish(inputs, results []string, noHeader bool, err error) {
 	}
 	status := "complete: " + strconv.Itoa(r.rows) + " rows"
 	if se != nil {
-		done := r.rows
-		if se.kind == errTooLarge && done > r.maxRows {
-			done = r.maxRows
-		}
-		status = "stopped after row " + strconv.Itoa(done) + ": " + se.msg
+		status = "stopped after row " + strconv.Itoa(r.rows) + ": " + se.msg
 		if r.w.stop("batch "+status+"; the rows after it were not read") != nil {
 			return
 		}
@@ -557,26 +603,35 @@ func (r *batchRun) flush() error {
 }
 
 // compute runs the calculation on one row, exactly as a single request
-// runs it, and returns its results in their output units.
-func (r *batchRun) compute(row *batchRow, columns []string) (items []resultItem, warnings []string, msg string) {
+// runs it, and keeps in c its results in their output units, its warnings
+// or its error message; p is the worker's parameter reader.
+func (r *batchRun) compute(c *computed, columns []string, p *params) {
+	c.warnings = nil
+	c.msg = r.computeRow(c, columns, p)
+}
+
+// computeRow computes c's row into c.items and c.warnings and returns the
+// row's error message, or "".
+func (r *batchRun) computeRow(c *computed, columns []string, p *params) string {
+	row := c.row
 	if row.err != "" {
-		return nil, nil, row.err
+		return row.err
 	}
 	if len(row.names) == 0 {
-		return nil, nil, "empty row"
+		return "empty row"
 	}
 	for _, n := range row.names {
 		if isOutput(n, r.spec.fields) {
-			return nil, nil, "parameter " + strconv.Quote(n) + ": output options go in the query string of the batch, for every row"
+			return "parameter " + strconv.Quote(n) + ": output options go in the query string of the batch, for every row"
 		}
 		if _, dup := r.shared[n]; dup {
-			return nil, nil, "parameter " + strconv.Quote(n) + " given in both the query and the row"
+			return "parameter " + strconv.Quote(n) + " given in both the query and the row"
 		}
 	}
 	if r.outCSV && !r.inCSV {
 		for _, n := range row.names {
 			if !contains(columns, n) {
-				return nil, nil, "parameter " + strconv.Quote(n) + " is not a member of the first element, whose members are the columns of a CSV answer"
+				return "parameter " + strconv.Quote(n) + " is not a member of the first element, whose members are the columns of a CSV answer"
 			}
 		}
 	}
@@ -584,16 +639,18 @@ func (r *batchRun) compute(row *batchRow, columns []string) (items []resultItem,
 	for k, v := range r.shared {
 		row.vals[k] = v
 	}
-	p := newParams(row.vals, r.h.cat)
+	p.reset(row.vals, r.h.cat)
 	resp, err := r.call(p)
 	if err != nil {
-		return nil, nil, problemOf(err, "").Detail
+		return problemOf(err, "").Detail
 	}
-	items, ok := r.out.convert(resp.Results)
+	items, ok := r.out.convert(resp.Results, c.items[:0])
+	c.items = items
 	if !ok {
-		return nil, nil, "the inputs lead to a result that is not a finite number; check them for extreme values"
+		return "the inputs lead to a result that is not a finite number; check them for extreme values"
 	}
-	return items, resp.Warnings, ""
+	c.warnings = resp.Warnings
+	return ""
 }
 
 // isOutput reports whether a name is an output option: format, units,
@@ -690,23 +747,23 @@ func readError(err error, what string) error {
 
 func (r *csvReader) columns() []string { return r.header }
 
-func (r *csvReader) next() (*batchRow, error) {
+func (r *csvReader) next(row *batchRow) error {
 	rec, err := r.r.Read()
 	var pe *csv.ParseError
 	var tl *bodyTooLarge
 	switch {
 	case err == nil:
 	case err == io.EOF:
-		return nil, io.EOF
+		return io.EOF
 	case errors.As(err, &tl):
-		return nil, &stopError{errTooLarge, tl.Error()}
+		return &stopError{errTooLarge, tl.Error()}
 	case errors.As(err, &pe):
 		// The reader goes on at the next line; this row says what was wrong.
-		return &batchRow{err: "CSV line " + strconv.Itoa(pe.StartLine) + ": " + pe.Err.Error()}, nil
+		row.err = "CSV line " + strconv.Itoa(pe.StartLine) + ": " + pe.Err.Error()
+		return nil
 	default:
-		return nil, &stopError{errInvalid, "the body cannot be read"}
+		return &stopError{errInvalid, "the body cannot be read"}
 	}
-	row := &batchRow{vals: make(map[string]raw, len(rec))}
 	if len(rec) != len(r.header) {
 		row.err = "row has " + strconv.Itoa(len(rec)) + " fields, the header row " + strconv.Itoa(len(r.header))
 	}
@@ -728,7 +785,7 @@ func (r *csvReader) next() (*batchRow, error) {
 	if len(row.names) == 0 && row.err == "" {
 		row.err = "empty row"
 	}
-	return row, nil
+	return nil
 }
 
 // jsonReader reads a JSON batch: an array of request objects, one
@@ -756,28 +813,29 @@ func newJSONReader(body io.Reader) (*jsonReader, error) {
 
 func (r *jsonReader) columns() []string { return nil }
 
-func (r *jsonReader) next() (*batchRow, error) {
+func (r *jsonReader) next(row *batchRow) error {
 	if r.end {
-		return nil, io.EOF
+		return io.EOF
 	}
 	if !r.dec.More() {
 		r.end = true
 		if _, err := r.dec.Token(); err != nil {
-			return nil, jsonStop(err)
+			return jsonStop(err)
 		}
 		if _, err := r.dec.Token(); err != io.EOF {
 			if err == nil {
-				return nil, &stopError{errInvalid, "malformed JSON: data after the array"}
+				return &stopError{errInvalid, "malformed JSON: data after the array"}
 			}
-			return nil, jsonStop(err)
+			return jsonStop(err)
 		}
-		return nil, io.EOF
+		return io.EOF
 	}
 	var elem json.RawMessage
 	if err := r.dec.Decode(&elem); err != nil {
-		return nil, jsonStop(err)
+		return jsonStop(err)
 	}
-	return decodeElement(elem), nil
+	*row = *decodeElement(elem)
+	return nil
 }
 
 func jsonStop(err error) error {

@@ -9,6 +9,7 @@ import (
 	"mime"
 	"net/http"
 	"net/url"
+	"slices"
 	"strconv"
 	"strings"
 	"unicode/utf8"
@@ -35,25 +36,56 @@ const (
 	rawObject
 )
 
-// readQuery reads query parameters; a parameter given twice is an error.
-func readQuery(q url.Values, into map[string]raw) []FieldError {
+// readQuery reads the parameters of a raw query string, as sent: pairs
+// separated by "&", each name=value percent-encoded with "+" for a space.
+// A parameter given twice, bad percent-encoding and invalid UTF-8 are
+// errors naming the parameter. Empty pairs ("a=1&&b=2") are skipped.
+func readQuery(query string, into map[string]raw) []FieldError {
 	var errs []FieldError
-	for k, vs := range q {
+	for query != "" {
+		var pair string
+		pair, query, _ = strings.Cut(query, "&")
+		if pair == "" {
+			continue
+		}
+		ek, ev, _ := strings.Cut(pair, "=")
+		k, err := url.QueryUnescape(ek)
+		if err != nil {
+			errs = append(errs, FieldError{Parameter: strconv.QuoteToASCII(ek), Detail: "parameter name is not valid percent-encoding"})
+			continue
+		}
 		if !utf8.ValidString(k) {
 			errs = append(errs, FieldError{Parameter: strconv.QuoteToASCII(k), Detail: "parameter name is not valid UTF-8"})
 			continue
 		}
-		if len(vs) > 1 {
-			errs = append(errs, FieldError{Parameter: k, Detail: "given more than once"})
+		v, err := url.QueryUnescape(ev)
+		switch {
+		case err != nil:
+			errs = append(errs, FieldError{Parameter: k, Detail: "value is not valid percent-encoding"})
 			continue
-		}
-		if !utf8.ValidString(vs[0]) {
+		case !utf8.ValidString(v):
 			errs = append(errs, FieldError{Parameter: k, Detail: "value is not valid UTF-8"})
 			continue
 		}
-		into[k] = raw{kind: rawString, str: vs[0], origin: vs[0]}
+		if _, dup := into[k]; dup {
+			errs = append(errs, FieldError{Parameter: k, Detail: "given more than once"})
+			continue
+		}
+		into[k] = raw{kind: rawString, str: v, origin: v}
 	}
-	return errs
+	return dedupe(errs)
+}
+
+// dedupe keeps the first error of each parameter, so that a name given
+// three times is reported once.
+func dedupe(errs []FieldError) []FieldError {
+	out := errs[:0]
+	for _, e := range errs {
+		if !slices.ContainsFunc(out, func(o FieldError) bool { return o.Parameter == e.Parameter && o.Detail == e.Detail }) {
+			out = append(out, e)
+		}
+	}
+	return out
 }
 
 // errBody is a request body that cannot be read as the JSON object of a

@@ -2,7 +2,6 @@ package handlers
 
 import (
 	"encoding/json"
-	"net/url"
 	"reflect"
 	"testing"
 )
@@ -34,15 +33,17 @@ func TestAppendResponseMatchesEncodingJSON(t *testing.T) {
 		t.Run(tc.calc+"?"+tc.query, func(t *testing.T) {
 			spec := specs[tc.calc]
 			vals := map[string]raw{}
-			qv, _ := url.ParseQuery(tc.query)
-			readQuery(qv, vals)
+			if errs := readQuery(tc.query, vals); len(errs) > 0 {
+				t.Fatal(errs)
+			}
 			p := newParams(vals, h.cat)
-			out := readOutput(p, fieldsOf(reflect.TypeOf(spec.results)))
+			out := new(outputOptions)
+			readOutput(out, p, fieldsOf(reflect.TypeOf(spec.results)))
 			resp, err := spec.fn(p)
 			if err != nil {
 				t.Fatal(err)
 			}
-			items, _ := out.convert(resp.Results)
+			items, _ := out.convert(resp.Results, nil)
 			h.complete(resp, spec.name, p)
 			if !typeOf(reflect.TypeOf(resp.Results)).valuesOnly {
 				t.Fatal("results are not all Values")

@@ -8,6 +8,7 @@ import (
 	"encoding/json"
 	"net/http"
 	"reflect"
+	"sync"
 	"sync/atomic"
 
 	"github.com/gin-gonic/gin"
@@ -144,25 +145,52 @@ func (h *Handler) calculations() []calcSpec {
 	return cs
 }
 
+// exchange is the scratch space of one calculation request: the
+// parameters, the output options and the response buffer. Exchanges are
+// reused through a pool, so that a request allocates little; nothing of
+// one outlives its request.
+type exchange struct {
+	vals, body map[string]raw
+	p          params
+	out        outputOptions
+	items      []resultItem
+	buf        []byte
+}
+
+var exchanges = sync.Pool{New: func() any {
+	return &exchange{vals: make(map[string]raw, 8), body: make(map[string]raw, 8), buf: make([]byte, 0, 2048)}
+}}
+
+// release returns x to the pool, forgetting the request's data.
+func (x *exchange) release() {
+	clear(x.vals)
+	clear(x.body)
+	x.p, x.out = params{}, outputOptions{}
+	if cap(x.buf) <= 64<<10 { // a rare huge answer is not kept
+		exchanges.Put(x)
+	}
+}
+
 // calculation is the wrapper around every calculation: it reads the
 // parameters, calls the calculation, converts results to their output
 // units and writes the response in the format asked for.
 func (h *Handler) calculation(spec calcSpec) gin.HandlerFunc {
 	fields := fieldsOf(reflect.TypeOf(spec.results))
 	return func(c *gin.Context) {
-		vals := make(map[string]raw, 8)
-		if errs := readQuery(c.Request.URL.Query(), vals); len(errs) > 0 {
+		x := exchanges.Get().(*exchange)
+		defer x.release()
+		vals := x.vals
+		if errs := readQuery(c.Request.URL.RawQuery, vals); len(errs) > 0 {
 			h.problem(c, nil, newError(errInvalid, "invalid query string", errs...))
 			return
 		}
 		if c.Request.Method == http.MethodPost {
-			body := make(map[string]raw, 8)
-			if err := readJSON(c.Request, h.opts.MaxBodyBytes, body); err != nil {
+			if err := readJSON(c.Request, h.opts.MaxBodyBytes, x.body); err != nil {
 				eb := err.(*errBody)
 				h.problem(c, nil, newError(eb.kind, eb.msg))
 				return
 			}
-			for k, v := range body {
+			for k, v := range x.body {
 				if _, dup := vals[k]; dup {
 					h.problem(c, nil, newError(errInvalid, "parameter "+k+" given in both the query and the body", FieldError{Parameter: k, Detail: "given in both the query and the body"}))
 					return
@@ -170,15 +198,17 @@ func (h *Handler) calculation(spec calcSpec) gin.HandlerFunc {
 				vals[k] = v
 			}
 		}
-		p := newParams(vals, h.cat)
-		out := readOutput(p, fields, spec.formats...)
+		p, out := &x.p, &x.out
+		p.reset(vals, h.cat)
+		readOutput(out, p, fields, spec.formats...)
 		resp, err := spec.fn(p)
 		if err != nil {
 			h.metrics.calcError(spec.name, err)
 			h.problem(c, out, err)
 			return
 		}
-		items, ok := out.convert(resp.Results)
+		items, ok := out.convert(resp.Results, x.items[:0])
+		x.items = items
 		if !ok {
 			err := newError(errUnprocessable, "the inputs lead to a result that is not a finite number; check them for extreme values")
 			h.metrics.calcError(spec.name, err)
@@ -186,7 +216,7 @@ func (h *Handler) calculation(spec calcSpec) gin.HandlerFunc {
 			return
 		}
 		h.complete(resp, spec.name, p)
-		h.write(c, out, resp, items)
+		x.buf = h.write(c, out, resp, items, x.buf[:0])
 	}
 }
 
@@ -229,16 +259,18 @@ type renderer interface {
 	render(out *outputOptions, resp *Response) (body []byte, contentType string, err error)
 }
 
-func (h *Handler) write(c *gin.Context, out *outputOptions, resp *Response, items []resultItem) {
+// write writes the response in the format asked for; buf is a buffer to
+// write JSON into, returned for reuse.
+func (h *Handler) write(c *gin.Context, out *outputOptions, resp *Response, items []resultItem, buf []byte) []byte {
 	if r, ok := resp.Results.(renderer); ok {
 		body, ct, err := r.render(out, resp)
 		if err != nil {
 			h.problem(c, out, err)
-			return
+			return buf
 		}
 		if body != nil {
 			c.Data(http.StatusOK, ct, body)
-			return
+			return buf
 		}
 	}
 	var body []byte
@@ -248,7 +280,7 @@ func (h *Handler) write(c *gin.Context, out *outputOptions, resp *Response, item
 		if body == nil {
 			h.problem(c, out, newError(errUnprocessable, "result "+out.result+" is not computed for these inputs",
 				FieldError{Parameter: "result", Detail: "not computed for these inputs"}))
-			return
+			return buf
 		}
 	case "csv":
 		body = csvBody(items, checksOf(resp.Results))
@@ -256,16 +288,18 @@ func (h *Handler) write(c *gin.Context, out *outputOptions, resp *Response, item
 		body = xmlBody(resp.Calculation, items, checksOf(resp.Results), resp.Warnings)
 	default:
 		if typeOf(reflect.TypeOf(resp.Results)).valuesOnly {
-			body = appendResponse(make([]byte, 0, 2048), resp, items)
+			buf = appendResponse(buf, resp, items)
+			body = buf
 			break
 		}
 		var err error
 		if body, err = json.Marshal(resp); err != nil {
 			h.problem(c, out, err)
-			return
+			return buf
 		}
 	}
 	c.Data(http.StatusOK, contentTypes[out.format], body)
+	return buf
 }
 
 // problem writes err as RFC 9457 problem+json, or, where the caller asked

@@ -32,10 +32,11 @@ func isControl(name string) bool {
 // baseFormats are the formats of every calculation.
 var baseFormats = []string{"json", "text", "csv", "xml"}
 
-// readOutput reads the output parameters; fields are the calculation's
-// results, formats the formats it offers beyond json, text, csv and xml.
-func readOutput(p *params, fields []resultField, formats ...string) *outputOptions {
-	o := &outputOptions{format: "json", system: "si"}
+// readOutput reads the output parameters into o; fields are the
+// calculation's results, formats the formats it offers beyond json, text,
+// csv and xml.
+func readOutput(o *outputOptions, p *params, fields []resultField, formats ...string) {
+	*o = outputOptions{format: "json", system: "si"}
 	if f, ok := p.text("format"); ok {
 		o.format = f
 		if !contains(baseFormats, f) && !contains(formats, f) {
@@ -83,7 +84,6 @@ func readOutput(p *params, fields []resultField, formats ...string) *outputOptio
 			o.overrides[rname] = u
 		}
 	}
-	return o
 }
 
 // resultUnit reads the parameter <result>_unit, the unit asked for the

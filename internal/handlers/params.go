@@ -27,10 +27,16 @@ type params struct {
 }
 
 func newParams(vals map[string]raw, cat *materials.Catalogue) *params {
-	p := &params{vals: vals, cat: cat}
+	p := new(params)
+	p.reset(vals, cat)
+	return p
+}
+
+// reset makes p read vals afresh, keeping its buffers.
+func (p *params) reset(vals map[string]raw, cat *materials.Catalogue) {
+	*p = params{vals: vals, cat: cat}
 	p.used = p.usedBuf[:0]
 	p.inputs = p.inputsBuf[:0]
-	return p
 }
 
 // fail records a problem with the named parameter.

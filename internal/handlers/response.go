@@ -211,11 +211,11 @@ type resultItem struct {
 }
 
 // convert sets every present result of res to its output unit and
-// returns them in order. It reports false when a result is not finite.
-func (o *outputOptions) convert(res any) ([]resultItem, bool) {
+// appends them in order to items. It reports false when a result is not
+// finite.
+func (o *outputOptions) convert(res any, items []resultItem) ([]resultItem, bool) {
 	v := reflect.ValueOf(res).Elem()
 	fields := fieldsOf(v.Type())
-	items := make([]resultItem, 0, len(fields))
 	for _, f := range fields {
 		p := v.Field(f.index).Interface().(*Value)
 		if p == nil {
@@ -276,19 +276,20 @@ func appendResponse(b []byte, resp *Response, items []resultItem) []byte {
 
 // appendJSONString appends s as a JSON string the way encoding/json does
 // by default: <, > and & escaped for HTML, U+2028 and U+2029 escaped,
-// invalid UTF-8 replaced by U+FFFD.
+// invalid UTF-8 replaced by U+FFFD. Runs of bytes that need no escaping,
+// most of any string here, are copied at once.
 func appendJSONString(b []byte, s string) []byte {
 	const hexDigits = "0123456789abcdef"
 	b = append(b, '"')
 	start := 0
 	for i := 0; i < len(s); {
 		c := s[i]
+		if jsonSafe[c] {
+			i++
+			continue
+		}
+		b = append(b, s[start:i]...)
 		if c < utf8.RuneSelf {
-			if c >= 0x20 && c != '"' && c != '\\' && c != '<' && c != '>' && c != '&' {
-				i++
-				continue
-			}
-			b = append(b, s[start:i]...)
 			switch c {
 			case '"', '\\':
 				b = append(b, '\\', c)
@@ -306,22 +307,26 @@ func appendJSONString(b []byte, s string) []byte {
 			continue
 		}
 		r, size := utf8.DecodeRuneInString(s[i:])
-		if r == utf8.RuneError && size == 1 {
-			b = append(b, s[start:i]...)
+		switch {
+		case r == utf8.RuneError && size == 1:
 			b = append(b, `\ufffd`...)
-			i += size
-			start = i
-			continue
-		}
-		if r == '\u2028' || r == '\u2029' {
-			b = append(b, s[start:i]...)
+		case r == '\u2028' || r == '\u2029':
 			b = append(b, '\\', 'u', '2', '0', '2', hexDigits[r&0xf])
-			i += size
-			start = i
-			continue
+		default:
+			b = append(b, s[i:i+size]...)
 		}
 		i += size
+		start = i
 	}
 	b = append(b, s[start:]...)
 	return append(b, '"')
 }
+
+// jsonSafe marks the bytes appendJSONString copies as they are: printable
+// ASCII but for the quote, the backslash and the HTML characters <, >, &.
+var jsonSafe = func() (t [256]bool) {
+	for c := 0x20; c < utf8.RuneSelf; c++ {
+		t[c] = c != '"' && c != '\\' && c != '<' && c != '>' && c != '&'
+	}
+	return t
+}()

@@ -201,7 +201,7 @@ func run(c config) error {
 				return err
 			}
 			res[s] = append(res[s], x)
-			fmt.Printf("round %d  %-8s %9.0f req/s  p50 %8s  p99 %8s\n", r+1, s.name, x.rps, us(x.p50), us(x.p99))
+			fmt.Printf("round %d  %-8s %9.0f req/s  p50 %8s  p99 %8s%s\n", r+1, s.name, x.rps, us(x.p50), us(x.p99), cpuNote(x.cpu))
 		}
 	}
 	fmt.Println()
@@ -243,6 +243,14 @@ func run(c config) error {
 	fmt.Println()
 	fmt.Println("peak memory:", svc.memory(), "(service);", bare.memory(), "(bare)")
 	return batchErr
+}
+
+// cpuNote shows a server's CPU time per request, when it is known.
+func cpuNote(d time.Duration) string {
+	if d <= 0 {
+		return ""
+	}
+	return fmt.Sprintf("  server CPU %5.1f µs/req", float64(d)/float64(time.Microsecond))
 }
 
 // maxNoise is the largest max/min of the bare server's rounds for which
@@ -291,6 +299,35 @@ func (s *server) memory() string {
 		return "VmHWM " + mib(hwm)
 	}
 	return "peak Go heap in use " + mib(s.peak()) + " (runtime.MemStats, whole harness process)"
+}
+
+// cpuTime is the user plus system CPU time a child process has used so
+// far, from /proc/PID/stat (in clock ticks of 10 ms, the Linux default
+// USER_HZ); 0 for the in-process service or when unreadable.
+func (s *server) cpuTime() time.Duration {
+	if s.cmd == nil {
+		return 0
+	}
+	b, err := os.ReadFile("/proc/" + strconv.Itoa(s.cmd.Process.Pid) + "/stat")
+	if err != nil {
+		return 0
+	}
+	// The command name, field 2, is in parentheses and may hold spaces:
+	// count the fields after its closing parenthesis (utime is field 14).
+	i := bytes.LastIndexByte(b, ')')
+	if i < 0 {
+		return 0
+	}
+	f := strings.Fields(string(b[i+1:]))
+	if len(f) < 13 {
+		return 0
+	}
+	ut, err1 := strconv.ParseInt(f[11], 10, 64)
+	st, err2 := strconv.ParseInt(f[12], 10, 64)
+	if err1 != nil || err2 != nil {
+		return 0
+	}
+	return time.Duration(ut+st) * 10 * time.Millisecond
 }
 
 func us(d time.Duration) time.Duration { return d.Round(time.Microsecond) }
@@ -534,6 +571,7 @@ func fetch(url string) ([]byte, string, error) {
 type result struct {
 	rps      float64
 	p50, p99 time.Duration
+	cpu      time.Duration // CPU (user+system) of the server process per request; 0 when unknown
 }
 
 // load runs the closed loop against s for d and checks every answer
@@ -548,6 +586,7 @@ func load(c config, s *server, want []byte, d time.Duration) (result, error) {
 		tr = &http.Transport{MaxIdleConnsPerHost: c.concurrency, MaxConnsPerHost: c.concurrency, DisableCompression: true}
 		defer tr.CloseIdleConnections()
 	}
+	cpu0 := s.cpuTime()
 	start := time.Now()
 	timer := time.AfterFunc(d, func() { stop.Store(true) })
 	defer timer.Stop()
@@ -589,9 +628,13 @@ func load(c config, s *server, want []byte, d time.Duration) (result, error) {
 	if len(all) == 0 {
 		return result{}, fmt.Errorf("load on %s: no request completed", s.name)
 	}
+	var cpu time.Duration
+	if cpu1 := s.cpuTime(); cpu1 > 0 && cpu0 > 0 {
+		cpu = (cpu1 - cpu0) / time.Duration(len(all))
+	}
 	slices.Sort(all)
 	q := func(p float64) time.Duration { return all[min(len(all)-1, int(p*float64(len(all))))] }
-	return result{rps: float64(len(all)) / elapsed.Seconds(), p50: q(0.50), p99: q(0.99)}, nil
+	return result{rps: float64(len(all)) / elapsed.Seconds(), p50: q(0.50), p99: q(0.99), cpu: cpu}, nil
 }
 
 func netHTTPClient(tr *http.Transport, url string) func() ([]byte, error) {
