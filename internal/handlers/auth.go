@@ -162,7 +162,7 @@ func (h *Handler) auth(c *gin.Context) {
 // more than once. The other parameters are left exactly as sent.
 func takeAPIKey(r *http.Request) (key string, found, many bool) {
 	q := r.URL.RawQuery
-	if q == "" {
+	if !mayHoldAPIKey(q) {
 		return "", false, false
 	}
 	parts := strings.Split(q, "&")
@@ -186,6 +186,21 @@ func takeAPIKey(r *http.Request) (key string, found, many bool) {
 	r.URL.RawQuery = strings.Join(kept, "&")
 	r.RequestURI = r.URL.RequestURI()
 	return key, found, many
+}
+
+// mayHoldAPIKey reports whether a raw query may name api_key: spelled out,
+// or in a name with escapes, which might decode to it. Most queries hold
+// neither and are left alone at once.
+func mayHoldAPIKey(q string) bool {
+	for q != "" {
+		var pair string
+		pair, q, _ = strings.Cut(q, "&")
+		name, _, _ := strings.Cut(pair, "=")
+		if name == apiKeyParam || strings.ContainsAny(name, "%+") {
+			return true
+		}
+	}
+	return false
 }
 
 // retryAfterSeconds is the Retry-After of a shed request.

@@ -4,8 +4,6 @@ import (
 	"crypto/sha256"
 	"encoding/hex"
 	"net/http"
-	"net/url"
-	"slices"
 	"strconv"
 	"strings"
 
@@ -29,9 +27,9 @@ var (
 // (calculations, materials, units) and answers If-None-Match with 304
 // Not Modified without running the handler.
 //
-// The ETag is a hash of the method, the path, the query parameters sorted
-// by name (without api_key) and the service and materials versions: the
-// same request to the same build gets the same body, byte for byte.
+// The ETag is a hash of the method, the path, the query (without api_key)
+// and the service and materials versions: the same request to the same
+// build gets the same body, byte for byte.
 // Headers must be set before the handler writes, so they are set here up
 // front; a writer wrapper then turns them into "Cache-Control: no-store"
 // (and drops the ETag) when the answer is an error: any status but 200
@@ -52,10 +50,11 @@ func (h *Handler) cache(c *gin.Context) {
 		// caller without a key.
 		cc = cachePrivate
 	}
+	// The keys are in canonical form: no canonicalisation per request.
 	hd := c.Writer.Header()
-	hd.Set("ETag", tag)
-	hd.Set("Cache-Control", cc)
-	if etagMatch(c.GetHeader("If-None-Match"), tag) {
+	hd["Etag"] = []string{tag}
+	hd["Cache-Control"] = []string{cc}
+	if inm := c.Request.Header["If-None-Match"]; len(inm) > 0 && etagMatch(inm[0], tag) {
 		c.Writer.WriteHeader(http.StatusNotModified)
 		c.Writer.WriteHeaderNow()
 		c.Abort()
@@ -65,46 +64,22 @@ func (h *Handler) cache(c *gin.Context) {
 	c.Next()
 }
 
-// etag derives the entity tag of a GET from what decides its body.
+// etag derives the entity tag of a GET from what decides its body: the
+// method, the path and the query as sent (auth has removed api_key), and
+// the service and materials versions. A cache keys its entries by URL, so
+// the same parameters in another order are another entry anyway; their
+// tags need not agree.
 func (h *Handler) etag(c *gin.Context) string {
 	r := c.Request
-	// The query's pairs, unescaped and sorted, so that neither the order
-	// nor the spelling (%20 or +) of the parameters matters; api_key
-	// never counts.
-	var pairs [24][2]string
-	ps := pairs[:0]
-	for rest := r.URL.RawQuery; rest != ""; {
-		var pair string
-		pair, rest, _ = strings.Cut(rest, "&")
-		k, v, _ := strings.Cut(pair, "=")
-		k, v = unescape(k), unescape(v)
-		if pair != "" && k != apiKeyParam {
-			ps = append(ps, [2]string{k, v})
-		}
-	}
-	slices.SortFunc(ps, func(a, b [2]string) int {
-		if c := strings.Compare(a[0], b[0]); c != 0 {
-			return c
-		}
-		return strings.Compare(a[1], b[1])
-	})
 	// Every part is length-prefixed, so that no two requests share an
 	// encoding.
 	var buf [512]byte
 	b := buf[:0]
-	part := func(s string) {
+	for _, s := range [...]string{r.Method, r.URL.Path, r.URL.RawQuery, h.opts.Version, h.cat.Version} {
 		b = strconv.AppendInt(b, int64(len(s)), 10)
 		b = append(b, ':')
 		b = append(b, s...)
 	}
-	part(r.Method)
-	part(r.URL.Path)
-	for _, p := range ps {
-		part(p[0])
-		part(p[1])
-	}
-	part(h.opts.Version)
-	part(h.cat.Version)
 	sum := sha256.Sum256(b)
 	var out [34]byte
 	out[0], out[33] = '"', '"'
@@ -177,12 +152,3 @@ func (w *cacheWriter) WriteString(s string) (int, error) {
 // Unwrap lets http.ResponseController reach the connection's writer (a
 // batch enables full duplex through it).
 func (w *cacheWriter) Unwrap() http.ResponseWriter { return w.ResponseWriter }
-
-// unescape decodes a query component, or leaves it as sent when it is
-// not valid escaping (the handler then refuses the request anyway).
-func unescape(s string) string {
-	if u, err := url.QueryUnescape(s); err == nil {
-		return u
-	}
-	return s
-}

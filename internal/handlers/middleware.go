@@ -19,7 +19,9 @@ import (
 )
 
 const (
-	requestIDHeader = "X-Request-ID"
+	// requestIDHeader is X-Request-ID in the canonical form net/http keys
+	// headers by, so that it can index a header map directly.
+	requestIDHeader = "X-Request-Id"
 	problemKey      = "problem"
 )
 
@@ -38,13 +40,16 @@ func newIDPrefix() string {
 // requestID takes the caller's X-Request-ID when it is a short token, or
 // makes one, and echoes it in the response.
 func (h *Handler) requestID(c *gin.Context) {
-	id := c.GetHeader(requestIDHeader)
+	var id string
+	if v := c.Request.Header[requestIDHeader]; len(v) > 0 {
+		id = v[0]
+	}
 	if !validRequestID(id) {
 		var buf [40]byte
 		b := append(append(buf[:0], h.metrics.idPrefix...), '-')
 		id = string(strconv.AppendUint(b, idCounter.Add(1), 36))
 	}
-	c.Header(requestIDHeader, id)
+	c.Writer.Header()[requestIDHeader] = []string{id}
 	c.Next()
 }
 

@@ -253,25 +253,50 @@ func appendResponse(b []byte, resp *Response, items []resultItem) []byte {
 	b = resp.Inputs.appendJSON(b)
 	b = append(b, `,"method":`...)
 	b = appendJSONString(b, resp.Method)
-	for _, list := range [...]struct {
-		key   string
-		items []string
-	}{{`,"references":`, resp.References}, {`,"warnings":`, resp.Warnings}, {`,"cautions":`, resp.Cautions}} {
-		b = append(b, list.key...)
-		b = append(b, '[')
-		for i, s := range list.items {
-			if i > 0 {
-				b = append(b, ',')
-			}
-			b = appendJSONString(b, s)
-		}
-		b = append(b, ']')
+	b = appendJSONStrings(append(b, `,"references":[`...), resp.References, false)
+	b = appendJSONStrings(append(b, `],"warnings":[`...), resp.Warnings, false)
+	b = append(b, `],"cautions":[`...)
+	cautions, sep := resp.Cautions, false
+	if startsWithStanding(cautions) {
+		b = append(b, standingCautionsJSON...)
+		cautions, sep = cautions[len(standingCautions):], true
 	}
+	b = appendJSONStrings(b, cautions, sep)
+	b = append(b, ']')
 	b = append(b, `,"versions":{"service":`...)
 	b = appendJSONString(b, resp.Versions.Service)
 	b = append(b, `,"materials":`...)
 	b = appendJSONString(b, resp.Versions.Materials)
 	return append(b, '}', '}')
+}
+
+// appendJSONStrings appends the elements of a JSON array of strings,
+// with a leading comma when sep is true.
+func appendJSONStrings(b []byte, ss []string, sep bool) []byte {
+	for _, s := range ss {
+		if sep {
+			b = append(b, ',')
+		}
+		b = appendJSONString(b, s)
+		sep = true
+	}
+	return b
+}
+
+// standingCautionsJSON are the standing cautions, which every response
+// begins its cautions with, encoded once.
+var standingCautionsJSON = appendJSONStrings(nil, standingCautions, false)
+
+func startsWithStanding(cautions []string) bool {
+	if len(cautions) < len(standingCautions) {
+		return false
+	}
+	for i, s := range standingCautions {
+		if cautions[i] != s {
+			return false
+		}
+	}
+	return true
 }
 
 // appendJSONString appends s as a JSON string the way encoding/json does
