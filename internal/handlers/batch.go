@@ -35,7 +35,7 @@ const (
 	// sent. Up to then a limit reached is answered with a 413 problem;
 	// after it only in-band (see batch).
 	batchHoldBack = 64 << 10
-	// batchFlushRows is how many rows are read, computed (on every core)
+	// batchFlushRows is how many rows are read, computed (by one worker)
 	// and written together; after each such chunk, output already sent is
 	// pushed to the network.
 	batchFlushRows = 512
@@ -123,7 +123,7 @@ type batchRun struct {
 	// maxBytes is the body limit.
 	maxBytes int64
 
-	free      chan batchChunk // written chunks, back to the reader
+	free      chan *batchChunk // written chunks, back to the reader
 	sink      *batchSink
 	bw        *bufio.Writer
 	w         batchWriter
@@ -208,7 +208,7 @@ func (h *Handler) newBatchRun(c *gin.Context, spec batchSpec) (*batchRun, error)
 		body:      &limitedBody{r: c.Request.Body, left: maxBytes, limit: maxBytes},
 		maxBytes:  maxBytes,
 		requestID: c.Writer.Header().Get(requestIDHeader),
-		free:      make(chan batchChunk, 2),
+		free:      make(chan *batchChunk, 4),
 	}
 	r.sink = &batchSink{c: c, contentType: contentTypes[out.format]}
 	r.bw = bufio.NewWriterSize(r.sink, batchHoldBack)
@@ -376,37 +376,46 @@ func (r *batchRun) serve() {
 		r.w = jw
 	}
 
-	// Three stages overlap: a goroutine reads chunks of rows, a second
-	// computes each chunk on every core, and this one writes them in
-	// order. A stop (unreadable body, row limit) ends the batch after the
-	// rows read before it.
+	// Three stages overlap: a goroutine reads chunks of rows, workers (one
+	// per core) compute a chunk each, and this goroutine writes the chunks
+	// in the order read, each once its worker is done. No chunk waits for
+	// another to be computed, and at most len(order) chunks are in flight,
+	// so memory does not grow with the rows. A stop (unreadable body, row
+	// limit) ends the batch after the rows read before it.
 	quit := make(chan struct{})
-	chunks := make(chan batchChunk, 1)
-	done := make(chan batchChunk, 1)
+	workers := min(runtime.GOMAXPROCS(0), 4)
+	work := make(chan *batchChunk, workers)
+	order := make(chan *batchChunk, workers+1)
 	var wg sync.WaitGroup
-	wg.Add(2)
+	wg.Add(1 + workers)
 	go func() {
 		defer wg.Done()
-		defer close(chunks)
-		r.read(rd, rd.columns(), chunks, quit)
+		defer close(work)
+		defer close(order)
+		r.read(rd, rd.columns(), order, work, quit)
 	}()
-	go func() {
-		defer wg.Done()
-		defer close(done)
-		for ch := range chunks {
-			r.computeAll(ch.rows, ch.inputs)
-			select {
-			case done <- ch:
-			case <-quit:
-				return
+	for range workers {
+		go func() {
+			defer wg.Done()
+			var p params // one per worker, reset for each row
+			for ch := range work {
+				for i := range ch.rows {
+					r.compute(&ch.rows[i], ch.inputs, &p)
+				}
+				close(ch.computed)
 			}
-		}
-	}()
+		}()
+	}
 	defer wg.Wait() // no stage outlives the handler
 	defer close(quit)
 
 	first := true
-	for ch := range done {
+	for ch := range order {
+		select {
+		case <-ch.computed:
+		case <-quit:
+			return
+		}
 		if len(ch.rows) == 0 {
 			r.finish(ch.inputs, results, first, ch.stop)
 			return
@@ -422,7 +431,6 @@ func (r *batchRun) serve() {
 				return // the client went away
 			}
 		}
-		r.recycle(ch)
 		if r.sink.committed {
 			if r.flush() != nil {
 				return
@@ -432,34 +440,38 @@ func (r *batchRun) serve() {
 			r.finish(ch.inputs, results, false, ch.stop)
 			return
 		}
+		r.recycle(ch)
 	}
 }
 
 // batchChunk is a run of rows read together, with the input columns
 // known when it was read and, on the last chunk, why the batch ended.
 type batchChunk struct {
-	rows   []computed
-	inputs []string
-	last   bool  // no chunk follows
-	stop   error // the batch stopped early after these rows; nil at the end of the body
+	rows     []computed
+	inputs   []string
+	last     bool          // no chunk follows
+	stop     error         // the batch stopped early after these rows; nil at the end of the body
+	computed chan struct{} // closed when every row is computed
 }
 
 // emptyChunk returns a chunk written before, or a new one. Written chunks
 // come back through r.free with their rows, so that a batch allocates its
 // rows, their maps and their results once, not once per row.
-func (r *batchRun) emptyChunk() batchChunk {
+func (r *batchRun) emptyChunk() *batchChunk {
+	var ch *batchChunk
 	select {
-	case ch := <-r.free:
+	case ch = <-r.free:
 		ch.rows = ch.rows[:0]
 		ch.last, ch.stop = false, nil
-		return ch
 	default:
-		return batchChunk{rows: make([]computed, 0, batchFlushRows)}
+		ch = &batchChunk{rows: make([]computed, 0, batchFlushRows)}
 	}
+	ch.computed = make(chan struct{})
+	return ch
 }
 
 // recycle offers a written chunk back to the reader.
-func (r *batchRun) recycle(ch batchChunk) {
+func (r *batchRun) recycle(ch *batchChunk) {
 	select {
 	case r.free <- ch:
 	default:
@@ -488,9 +500,10 @@ func (row *batchRow) reset() {
 	row.names, row.err = row.names[:0], ""
 }
 
-// read reads the body in chunks of batchFlushRows rows and sends them
-// until the body ends, a stop, or quit.
-func (r *batchRun) read(rd batchReader, inputs []string, out chan<- batchChunk, quit <-chan struct{}) {
+// read reads the body in chunks of batchFlushRows rows and sends each to
+// order (for the writer) and to work (for a worker), until the body ends,
+// a stop, or quit.
+func (r *batchRun) read(rd batchReader, inputs []string, order, work chan<- *batchChunk, quit <-chan struct{}) {
 	for sent := false; ; sent = true {
 		ch := r.emptyChunk()
 		for len(ch.rows) < batchFlushRows {
@@ -515,10 +528,12 @@ func (r *batchRun) read(rd batchReader, inputs []string, out chan<- batchChunk, 
 			}
 		}
 		ch.inputs = inputs
-		select {
-		case out <- ch:
-		case <-quit:
-			return
+		for _, out := range [...]chan<- *batchChunk{order, work} {
+			select {
+			case out <- ch:
+			case <-quit:
+				return
+			}
 		}
 		if ch.last {
 			return
@@ -532,33 +547,6 @@ type computed struct {
 	items    []resultItem
 	warnings []string
 	msg      string
-}
-
-// computeAll computes a chunk of rows, spread over the cores; the rows
-// are independent and the calculations pure.
-func (r *batchRun) computeAll(chunk []computed, columns []string) {
-	workers := min(runtime.GOMAXPROCS(0), 4)
-	if workers < 2 || len(chunk) < 64 {
-		var p params
-		for i := range chunk {
-			r.compute(&chunk[i], columns, &p)
-		}
-		return
-	}
-	var wg sync.WaitGroup
-	per := (len(chunk) + workers - 1) / workers
-	for w := 0; w < workers; w++ {
-		part := chunk[min(w*per, len(chunk)):min((w+1)*per, len(chunk))]
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			var p params // one per worker, reset for each row
-			for i := range part {
-				r.compute(&part[i], columns, &p)
-			}
-		}()
-	}
-	wg.Wait()
 }
 
 // finish ends the answer: normally, or stopped by err. A stop before the
