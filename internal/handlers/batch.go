@@ -123,7 +123,6 @@ type batchRun struct {
 	// maxBytes is the body limit.
 	maxBytes int64
 
-	free      chan *batchChunk // written chunks, back to the reader
 	sink      *batchSink
 	bw        *bufio.Writer
 	w         batchWriter
@@ -208,7 +207,6 @@ func (h *Handler) newBatchRun(c *gin.Context, spec batchSpec) (*batchRun, error)
 		body:      &limitedBody{r: c.Request.Body, left: maxBytes, limit: maxBytes},
 		maxBytes:  maxBytes,
 		requestID: c.Writer.Header().Get(requestIDHeader),
-		free:      make(chan *batchChunk, 4),
 	}
 	r.sink = &batchSink{c: c, contentType: contentTypes[out.format]}
 	r.bw = bufio.NewWriterSize(r.sink, batchHoldBack)
@@ -440,7 +438,7 @@ func (r *batchRun) serve() {
 			r.finish(ch.inputs, results, false, ch.stop)
 			return
 		}
-		r.recycle(ch)
+		chunks.Put(ch)
 	}
 }
 
@@ -454,28 +452,17 @@ type batchChunk struct {
 	computed chan struct{} // closed when every row is computed
 }
 
-// emptyChunk returns a chunk written before, or a new one. Written chunks
-// come back through r.free with their rows, so that a batch allocates its
-// rows, their maps and their results once, not once per row.
-func (r *batchRun) emptyChunk() *batchChunk {
-	var ch *batchChunk
-	select {
-	case ch = <-r.free:
-		ch.rows = ch.rows[:0]
-		ch.last, ch.stop = false, nil
-	default:
-		ch = &batchChunk{rows: make([]computed, 0, batchFlushRows)}
-	}
+// chunks keeps chunks written before, with their rows, so that batches
+// allocate rows, their maps and their results once, not once per row.
+var chunks = sync.Pool{New: func() any { return &batchChunk{rows: make([]computed, 0, batchFlushRows)} }}
+
+// emptyChunk returns a chunk to fill.
+func emptyChunk() *batchChunk {
+	ch := chunks.Get().(*batchChunk)
+	ch.rows, ch.inputs = ch.rows[:0], nil
+	ch.last, ch.stop = false, nil
 	ch.computed = make(chan struct{})
 	return ch
-}
-
-// recycle offers a written chunk back to the reader.
-func (r *batchRun) recycle(ch *batchChunk) {
-	select {
-	case r.free <- ch:
-	default:
-	}
 }
 
 // grow adds an empty row to the chunk, reusing the one a recycled chunk
@@ -505,7 +492,7 @@ func (row *batchRow) reset() {
 // a stop, or quit.
 func (r *batchRun) read(rd batchReader, inputs []string, order, work chan<- *batchChunk, quit <-chan struct{}) {
 	for sent := false; ; sent = true {
-		ch := r.emptyChunk()
+		ch := emptyChunk()
 		for len(ch.rows) < batchFlushRows {
 			row := ch.grow().row
 			err := rd.next(row)
@@ -735,22 +722,27 @@ func readError(err error, what string) error {
 
 func (r *csvReader) columns() []string { return r.header }
 
-func (r *csvReader) next(row *batchRow) error {
-	rec, err := r.r.Read()
+// csvStop interprets an error of the CSV reader: the end, a stop, or a
+// malformed line, which becomes the row's error while the reader goes on.
+func csvStop(err error, row *batchRow) error {
 	var pe *csv.ParseError
 	var tl *bodyTooLarge
 	switch {
-	case err == nil:
 	case err == io.EOF:
 		return io.EOF
 	case errors.As(err, &tl):
 		return &stopError{errTooLarge, tl.Error()}
 	case errors.As(err, &pe):
-		// The reader goes on at the next line; this row says what was wrong.
 		row.err = "CSV line " + strconv.Itoa(pe.StartLine) + ": " + pe.Err.Error()
 		return nil
-	default:
-		return &stopError{errInvalid, "the body cannot be read"}
+	}
+	return &stopError{errInvalid, "the body cannot be read"}
+}
+
+func (r *csvReader) next(row *batchRow) error {
+	rec, err := r.r.Read()
+	if err != nil {
+		return csvStop(err, row)
 	}
 	if len(rec) != len(r.header) {
 		row.err = "row has " + strconv.Itoa(len(rec)) + " fields, the header row " + strconv.Itoa(len(r.header))

@@ -2,6 +2,7 @@ package handlers
 
 import (
 	"math"
+	"slices"
 
 	"github.com/thermalmovement/service/internal/calc"
 	"github.com/thermalmovement/service/internal/materials"
@@ -91,6 +92,7 @@ func linearMethod(co coefficient) string {
 
 // cite adds the references and warnings of the coefficient used.
 func (h *Handler) cite(resp *Response, co coefficient) {
+	resp.References = slices.Grow(resp.References, 2+len(co.Source.Refs))
 	resp.References = append(resp.References, refASTME228)
 	if co.Kind != "constant" {
 		resp.References = append(resp.References, refASMEIID)
