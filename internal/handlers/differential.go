@@ -195,8 +195,8 @@ func (h *Handler) differential(p *params) (*Response, error) {
 	if coA.Kind != "constant" || coB.Kind != "constant" {
 		resp.References = append(resp.References, refASMEIID)
 	}
-	resp.References = appendNew(resp.References, h.cat.Cite(coA.Source.Refs)...)
-	resp.References = appendNew(resp.References, h.cat.Cite(coB.Source.Refs)...)
+	resp.References = appendNew(resp.References, coA.Source.Citations...)
+	resp.References = appendNew(resp.References, coB.Source.Citations...)
 	resp.Warnings = append(resp.Warnings, coA.Warnings...)
 	resp.Warnings = append(resp.Warnings, coB.Warnings...)
 	resp.Cautions = append(resp.Cautions, "Differential movement must be taken up by the fixings or a movement joint; a fixing that blocks it loads both members and the fixing itself.")
@@ -300,7 +300,7 @@ func (h *Handler) property(p *params, resp *Response, name, matName, what, examp
 	}
 	v, unit := echo(prop.Value)
 	p.inputs.addUsed(name, v, unit, "catalogue "+m.ID)
-	resp.References = appendNew(resp.References, h.cat.Cite(prop.Refs)...)
+	resp.References = appendNew(resp.References, prop.Citations...)
 	return prop.Value, true
 }
 
@@ -513,7 +513,7 @@ func (h *Handler) restraint(p *params) (*Response, error) {
 	} else if m := peekMaterial(p, "material"); m != nil && m.Yield != nil {
 		fy, hasFy, fyFrom = m.Yield.Value, true, "catalogue "+m.ID
 		p.inputs.addUsed("yield_strength", fy/1e6, "MPa", fyFrom)
-		resp.References = appendNew(resp.References, h.cat.Cite(m.Yield.Refs)...)
+		resp.References = appendNew(resp.References, m.Yield.Citations...)
 	}
 	if err := p.done(); err != nil || !(cok && eok && aok && lok && rok && bok) {
 		if err == nil {
@@ -527,7 +527,7 @@ func (h *Handler) restraint(p *params) (*Response, error) {
 	if co.Kind != "constant" {
 		resp.References = append(resp.References, refASMEIID)
 	}
-	resp.References = appendNew(resp.References, h.cat.Cite(co.Source.Refs)...)
+	resp.References = appendNew(resp.References, co.Source.Citations...)
 	resp.Warnings = append(resp.Warnings, co.Warnings...)
 	if spring {
 		r = calc.EffectiveRestraint(k, e, area, length)

@@ -97,7 +97,7 @@ func (h *Handler) cite(resp *Response, co coefficient) {
 	if co.Kind != "constant" {
 		resp.References = append(resp.References, refASMEIID)
 	}
-	resp.References = append(resp.References, h.cat.Cite(co.Source.Refs)...)
+	resp.References = append(resp.References, co.Source.Citations...)
 	resp.Warnings = append(resp.Warnings, co.Warnings...)
 }
 
@@ -341,7 +341,7 @@ func (h *Handler) volume(p *params) (*Response, error) {
 		res.BetaMean = si(b.Value)
 		p.inputs.addUsed("beta", b.Value, "1/K", "material "+liquid.ID)
 		resp.Method = "dV = beta V0 dT with the constant mean volumetric coefficient of " + liquid.ID
-		resp.References = append(resp.References, h.cat.Cite(b.Refs)...)
+		resp.References = append(resp.References, b.Citations...)
 		if iv.absolute {
 			resp.Warnings = append(resp.Warnings, liquid.BetaWarnings(iv.t1, iv.t2)...)
 		}
@@ -375,7 +375,7 @@ func (h *Handler) volume(p *params) (*Response, error) {
 			v := calc.InVessel(capacity, vco.Strain, r.FinalVolumeM3)
 			vessel = &v
 			resp.Method += "; vessel capacity C = C0 (1 + e_vessel)^3 (" + vco.from + "), net_overflow = V - C"
-			resp.References = append(resp.References, h.cat.Cite(vco.Source.Refs)...)
+			resp.References = append(resp.References, vco.Source.Citations...)
 			resp.Warnings = append(resp.Warnings, vco.Warnings...)
 			if capacity < vol {
 				p.unprocessable("vessel_volume", "smaller than the liquid volume: the vessel overflows before heating")

@@ -409,7 +409,7 @@ func (h *Handler) citeJoint(resp *Response, in jointInput) {
 	if in.hasSealant {
 		resp.References = append(resp.References, refASTMC1472, refASTMC920)
 	}
-	resp.References = append(resp.References, h.cat.Cite(in.co.Source.Refs)...)
+	resp.References = append(resp.References, in.co.Source.Citations...)
 	resp.Warnings = append(resp.Warnings, in.co.Warnings...)
 	if in.band != nil && !in.band.Alpha.HasBand {
 		resp.Warnings = append(resp.Warnings, "the catalogue gives no band for "+in.band.ID+": low and high bounds equal its design value")

@@ -109,7 +109,7 @@ func (h *Handler) coefInfo(co *materials.Coefficient) *CoefficientInfo {
 	if co == nil {
 		return nil
 	}
-	ci := &CoefficientInfo{Value: Number(co.Value), Unit: "1/K", Confidence: co.Confidence, Note: co.Note, Sources: h.cat.Cite(co.Refs)}
+	ci := &CoefficientInfo{Value: Number(co.Value), Unit: "1/K", Confidence: co.Confidence, Note: co.Note, Sources: co.Citations}
 	if co.HasBand {
 		ci.Low, ci.High = num(co.Low), num(co.High)
 	}
@@ -124,7 +124,7 @@ func (h *Handler) propInfo(p *materials.Property, unit string) *PropertyInfo {
 		return nil
 	}
 	u, _ := units.ParseUnit(unit)
-	return &PropertyInfo{Value: Number(units.FromSI(p.Value, u)), Unit: unit, Confidence: p.Confidence, Note: p.Note, Sources: h.cat.Cite(p.Refs)}
+	return &PropertyInfo{Value: Number(units.FromSI(p.Value, u)), Unit: unit, Confidence: p.Confidence, Note: p.Note, Sources: p.Citations}
 }
 
 func (h *Handler) materialInfo(m *materials.Material) MaterialInfo {
@@ -138,7 +138,7 @@ func (h *Handler) materialInfo(m *materials.Material) MaterialInfo {
 	for _, cv := range m.Curves {
 		lo, hi := cv.Range()
 		mi.Curves = append(mi.Curves, CurveInfo{Kind: cv.Kind, TMin: Number(lo.Celsius()), TMax: Number(hi.Celsius()), TUnit: "degC",
-			Confidence: cv.Confidence, Note: cv.Note, Sources: h.cat.Cite(cv.Refs)})
+			Confidence: cv.Confidence, Note: cv.Note, Sources: cv.Citations})
 	}
 	return mi
 }

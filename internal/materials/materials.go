@@ -71,6 +71,7 @@ type Property struct {
 // Source is where a value comes from.
 type Source struct {
 	Refs       []string // reference ids; Catalogue.Cite turns them into citations
+	Citations  []string // the citations of Refs, resolved when the catalogue is loaded
 	Confidence string   // "read" or "memory"
 	Note       string
 }
@@ -300,7 +301,7 @@ func (s fileSource) source(c *Catalogue) (Source, error) {
 	if s.Confidence != "read" && s.Confidence != "memory" {
 		return Source{}, fmt.Errorf("confidence %q is neither read nor memory", s.Confidence)
 	}
-	return Source{Refs: s.Refs, Confidence: s.Confidence, Note: s.Note}, nil
+	return Source{Refs: s.Refs, Citations: c.Cite(s.Refs), Confidence: s.Confidence, Note: s.Note}, nil
 }
 
 func (fc *fileCoef) coefficient(c *Catalogue, name string) (*Coefficient, error) {

@@ -3,6 +3,7 @@ package materials
 import (
 	"errors"
 	"math"
+	"slices"
 	"testing"
 
 	"github.com/thermalmovement/service/internal/calc"
@@ -40,12 +41,18 @@ func TestEveryValueCited(t *testing.T) {
 			if s != nil && len(c.Cite(s.Refs)) == 0 {
 				t.Errorf("%s: coefficient without a citation", m.ID)
 			}
+			if s != nil && !slices.Equal(s.Citations, c.Cite(s.Refs)) {
+				t.Errorf("%s: citations resolved at load %q, want %q", m.ID, s.Citations, c.Cite(s.Refs))
+			}
 		}
 		for _, cv := range m.Curves {
 			for _, cite := range c.Cite(cv.Refs) {
 				if cite == "" {
 					t.Errorf("%s: curve cites an empty reference", m.ID)
 				}
+			}
+			if !slices.Equal(cv.Citations, c.Cite(cv.Refs)) {
+				t.Errorf("%s: curve citations resolved at load %q, want %q", m.ID, cv.Citations, c.Cite(cv.Refs))
 			}
 		}
 	}
