@@ -453,7 +453,9 @@ type batchChunk struct {
 }
 
 // chunks keeps chunks written before, with their rows, so that batches
-// allocate rows, their maps and their results once, not once per row.
+// allocate rows, their maps and their results once, not once per row. A
+// pooled row still holds the strings of its last batch until it is reused
+// (grow empties it) or the pool is dropped at a garbage collection.
 var chunks = sync.Pool{New: func() any { return &batchChunk{rows: make([]computed, 0, batchFlushRows)} }}
 
 // emptyChunk returns a chunk to fill.

@@ -6,9 +6,11 @@ import (
 )
 
 // TestReadQuery checks the query reader against the form encoding of the
-// WHATWG URL standard (application/x-www-form-urlencoded parsing: split on
-// "&", then on the first "=", "+" is a space, percent-decoding), which
-// net/url also follows, and that every fault names its parameter.
+// WHATWG URL Standard, from memory of its application/x-www-form-urlencoded
+// parser (split on "&", skip empty pairs, split on the first "=", "+" is a
+// space, then percent-decode), which net/url also follows, and that every
+// fault names its parameter. Unlike that parser, which keeps bad escapes
+// as they are, a bad escape here is refused: a value must not be guessed.
 func TestReadQuery(t *testing.T) {
 	cases := []struct {
 		query string

@@ -165,7 +165,8 @@ var exchanges = sync.Pool{New: func() any {
 func (x *exchange) release() {
 	clear(x.vals)
 	clear(x.body)
-	x.p, x.out = params{}, outputOptions{}
+	clear(x.items)
+	x.p, x.out, x.items = params{}, outputOptions{}, x.items[:0]
 	if cap(x.buf) <= 64<<10 { // a rare huge answer is not kept
 		exchanges.Put(x)
 	}
