@@ -597,17 +597,17 @@ func (r *batchRun) computeRow(c *computed, columns []string, p *params) string {
 	if len(row.names) == 0 {
 		return "empty row"
 	}
-	for _, n := range row.names {
-		if isOutput(n, r.spec.fields) {
-			return "parameter " + strconv.Quote(n) + ": output options go in the query string of the batch, for every row"
-		}
-		if _, dup := r.shared[n]; dup {
-			return "parameter " + strconv.Quote(n) + " given in both the query and the row"
-		}
-	}
-	if r.outCSV && !r.inCSV {
+	if !r.inCSV { // a CSV header row was checked for these once, in newCSVReader
 		for _, n := range row.names {
-			if !contains(columns, n) {
+			if isOutput(n, r.spec.fields) {
+				return "parameter " + strconv.Quote(n) + ": output options go in the query string of the batch, for every row"
+			}
+			if _, dup := r.shared[n]; dup {
+				return "parameter " + strconv.Quote(n) + " given in both the query and the row"
+			}
+		}
+		for _, n := range row.names {
+			if r.outCSV && !contains(columns, n) {
 				return "parameter " + strconv.Quote(n) + " is not a member of the first element, whose members are the columns of a CSV answer"
 			}
 		}

@@ -99,6 +99,10 @@ func (p *params) ok() bool {
 // done checks for parameters nobody read, then returns every problem
 // found as one error, or nil.
 func (p *params) done() error {
+	if len(p.used) == len(p.vals) {
+		// used holds distinct names of vals only (see take): all were read.
+		return fieldsError(p.errs)
+	}
 	var unknown []string
 	for k := range p.vals {
 		if !p.isUsed(k) {

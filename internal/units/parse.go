@@ -5,6 +5,8 @@ import (
 	"math"
 	"strconv"
 	"strings"
+	"sync"
+	"sync/atomic"
 )
 
 // Errors reported by the parser, wrapped in *Error. Test them with errors.Is.
@@ -196,7 +198,34 @@ type unitParser struct {
 	last  symbol // the only symbol, while there is exactly one
 }
 
+// parsedUnits remembers the unit expressions parsed so far: requests,
+// and the rows of a batch above all, repeat a handful of them ("m",
+// "1/K", "degC"). Only successes are kept, since a message quotes the
+// whole input. It is bounded: once it holds maxParsedUnits expressions,
+// others are parsed every time, so that no caller can grow it.
+var parsedUnits struct {
+	m sync.Map // expression -> Unit
+	n atomic.Int32
+}
+
+const maxParsedUnits = 512
+
 func parseUnit(expr, src string) (Unit, error) {
+	if u, ok := parsedUnits.m.Load(expr); ok {
+		return u.(Unit), nil
+	}
+	u, err := parseUnitExpr(expr, src)
+	if err == nil && parsedUnits.n.Load() < maxParsedUnits {
+		// The key and Symbol are copied: expr is part of a request.
+		u.Symbol = strings.Clone(expr)
+		if _, loaded := parsedUnits.m.LoadOrStore(u.Symbol, u); !loaded {
+			parsedUnits.n.Add(1)
+		}
+	}
+	return u, err
+}
+
+func parseUnitExpr(expr, src string) (Unit, error) {
 	p := &unitParser{src: src, s: expr}
 	f, d, err := p.expr()
 	if err != nil {
