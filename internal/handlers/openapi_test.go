@@ -154,7 +154,60 @@ func TestResponsesMatchDocument(t *testing.T) {
 			if err := openapi3filter.ValidateResponse(context.Background(), out); err != nil {
 				t.Errorf("response %d does not match the document: %v\n%s", w.Code, err, truncate(w.Body.String()))
 			}
+			checkHeadersDocumented(t, route.Operation, w)
 		})
+	}
+}
+
+// checkHeadersDocumented checks that the headers the middleware sets, as
+// far as w carries them, are declared on its response in the document.
+func checkHeadersDocumented(t *testing.T, op *openapi3.Operation, w *httptest.ResponseRecorder) {
+	t.Helper()
+	resp := op.Responses.Status(w.Code)
+	if resp == nil || resp.Value == nil {
+		t.Errorf("status %d is not documented", w.Code)
+		return
+	}
+	for _, name := range []string{"X-Request-Id", "ETag", "Cache-Control"} {
+		if w.Header().Get(name) != "" && resp.Value.Headers[name] == nil {
+			t.Errorf("response %d carries %s, which the document does not declare", w.Code, name)
+		}
+	}
+}
+
+// TestNotModifiedMatchesDocument: the 304 of a matching If-None-Match is
+// documented with its headers, as the 200 before it.
+func TestNotModifiedMatchesDocument(t *testing.T) {
+	_, router := loadSpec(t)
+	r := newTestHandler(t).Router()
+	const target = "http://example.test/v1/expansion/linear?length=48%20m&alpha=12e-6/K&delta_t=50%20K"
+	first := getWith(r, target)
+	tag := first.Header().Get("ETag")
+	if first.Code != http.StatusOK || tag == "" || first.Header().Get("Cache-Control") == "" || first.Header().Get("X-Request-Id") == "" {
+		t.Fatalf("first GET: status %d, headers %v", first.Code, first.Header())
+	}
+	second := getWith(r, target, "If-None-Match", tag)
+	if second.Code != http.StatusNotModified {
+		t.Fatalf("If-None-Match %s: status %d", tag, second.Code)
+	}
+	for _, w := range []*httptest.ResponseRecorder{first, second} {
+		req := httptest.NewRequest(http.MethodGet, target, nil)
+		req.Header.Set("If-None-Match", tag)
+		route, params, err := router.FindRoute(req)
+		if err != nil {
+			t.Fatal(err)
+		}
+		in := &openapi3filter.RequestValidationInput{Request: req, PathParams: params, Route: route,
+			Options: &openapi3filter.Options{AuthenticationFunc: openapi3filter.NoopAuthenticationFunc}}
+		if err := openapi3filter.ValidateRequest(context.Background(), in); err != nil {
+			t.Errorf("request with If-None-Match does not match the document: %v", err)
+		}
+		out := &openapi3filter.ResponseValidationInput{RequestValidationInput: in, Status: w.Code, Header: w.Header(),
+			Body: io.NopCloser(bytes.NewReader(w.Body.Bytes())), Options: &openapi3filter.Options{IncludeResponseStatus: true}}
+		if err := openapi3filter.ValidateResponse(context.Background(), out); err != nil {
+			t.Errorf("response %d does not match the document: %v", w.Code, err)
+		}
+		checkHeadersDocumented(t, route.Operation, w)
 	}
 }
 

@@ -3,8 +3,10 @@
 // OpenAPI 3.0 with kin-openapi's openapi2conv, and completes what Swagger
 // 2.0 cannot say: JSON request bodies for the POST twins of the GET
 // calculations (a quantity is a string or a {value, unit} object), the
-// application/problem+json content of every error response, and plain
-// string bodies for the text, csv, svg and png formats.
+// application/problem+json content of every error response, plain
+// string bodies for the text, csv, svg and png formats, and the headers
+// the middleware sets (X-Request-Id, ETag, Cache-Control, the 304 of a
+// matching If-None-Match).
 //
 // Run it through `go generate ./api`.
 package main
@@ -130,6 +132,7 @@ func complete(doc *openapi3.T) {
 		doc.Components.Schemas = openapi3.Schemas{}
 	}
 	doc.Components.Schemas["Quantity"] = quantity
+	sharedHeaders(doc)
 	// Inputs are written as an object keyed by parameter name.
 	if r := doc.Components.Schemas["handlers.Response"]; r != nil && r.Value != nil {
 		r.Value.Properties["inputs"] = &openapi3.SchemaRef{Value: &openapi3.Schema{
@@ -158,6 +161,65 @@ func complete(doc *openapi3.T) {
 				bodyFromQuery(op)
 			}
 			fixResponses(op)
+			describeHeaders(op, method == "GET" && strings.HasPrefix(path, "/v1/"))
+		}
+	}
+}
+
+// The headers every answer may carry, set by the middleware of
+// internal/handlers (requestID, cache) rather than by any one handler.
+func sharedHeaders(doc *openapi3.T) {
+	str := func(desc string) *openapi3.Schema {
+		return &openapi3.Schema{Type: &openapi3.Types{"string"}, Description: desc}
+	}
+	header := func(desc string) *openapi3.HeaderRef {
+		return &openapi3.HeaderRef{Value: &openapi3.Header{Parameter: openapi3.Parameter{
+			Description: desc, Schema: &openapi3.SchemaRef{Value: str("")}}}}
+	}
+	doc.Components.Headers = openapi3.Headers{
+		"X-Request-Id": header("The id under which the request was logged: the caller's own X-Request-Id when it is 1 to 128 " +
+			"characters of A-Z, a-z, 0-9 and - _ . :, otherwise one the service made."),
+		"ETag": header("On a 200 GET of /v1/: a strong tag of the answer, a hash of the method, the path, the query as sent " +
+			"(without api_key) and the service and materials versions. Send it back in If-None-Match."),
+		"Cache-Control": header("public, max-age=300 on a GET of /v1/ (private, max-age=300 when the deployment requires API " +
+			"keys); no-store on every error, and on an on_error=inline answer that reports one."),
+	}
+	if doc.Components.Parameters == nil {
+		doc.Components.Parameters = openapi3.ParametersMap{}
+	}
+	doc.Components.Parameters["X-Request-Id"] = &openapi3.ParameterRef{Value: &openapi3.Parameter{
+		Name: "X-Request-Id", In: "header", Description: "an id of the caller's own, logged with the request and echoed in the answer",
+		Schema: &openapi3.SchemaRef{Value: &openapi3.Schema{Type: &openapi3.Types{"string"}, MaxLength: uint64Ptr(128)}}}}
+	doc.Components.Parameters["If-None-Match"] = &openapi3.ParameterRef{Value: &openapi3.Parameter{
+		Name: "If-None-Match", In: "header", Description: "the ETag of an earlier answer: 304 Not Modified, no body, when it still holds",
+		Schema: &openapi3.SchemaRef{Value: str("")}}}
+}
+
+// describeHeaders adds the shared headers to an operation: X-Request-Id
+// on every answer, Cache-Control on errors, and for a cacheable GET the
+// ETag and Cache-Control of its 200, If-None-Match and the 304.
+func describeHeaders(op *openapi3.Operation, cacheable bool) {
+	ref := func(name string) *openapi3.HeaderRef { return &openapi3.HeaderRef{Ref: "#/components/headers/" + name} }
+	op.Parameters = append(op.Parameters, &openapi3.ParameterRef{Ref: "#/components/parameters/X-Request-Id"})
+	if cacheable {
+		op.Parameters = append(op.Parameters, &openapi3.ParameterRef{Ref: "#/components/parameters/If-None-Match"})
+		op.Responses.Set("304", &openapi3.ResponseRef{Value: openapi3.NewResponse().WithDescription(
+			"Not Modified: If-None-Match holds this answer's ETag; no body")})
+	}
+	for code, rr := range op.Responses.Map() {
+		r := rr.Value
+		if r == nil {
+			continue
+		}
+		if r.Headers == nil {
+			r.Headers = openapi3.Headers{}
+		}
+		r.Headers["X-Request-Id"] = ref("X-Request-Id")
+		if code[0] == '4' || code[0] == '5' || cacheable {
+			r.Headers["Cache-Control"] = ref("Cache-Control")
+		}
+		if cacheable && (code == "200" || code == "304") {
+			r.Headers["ETag"] = ref("ETag")
 		}
 	}
 }
@@ -239,3 +301,5 @@ func fixResponses(op *openapi3.Operation) {
 }
 
 func boolPtr(b bool) *bool { return &b }
+
+func uint64Ptr(n uint64) *uint64 { return &n }
