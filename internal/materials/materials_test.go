@@ -198,6 +198,18 @@ func TestSelection(t *testing.T) {
 	if err != nil || e.Kind != "constant" || len(e.Warnings) == 0 {
 		t.Errorf("constant beyond range = %+v, %v; want constant with a warning", e, err)
 	}
+	// A bare difference: the constant holds from -50 to 100 degC (the
+	// catalogue's range for EN 1993-1-1 3.2.6, from memory, not re-read),
+	// so 150 K may lie within it and 1000 K cannot.
+	for _, tc := range []struct {
+		dT   units.TemperatureDifference
+		warn bool
+	}{{50, false}, {150, false}, {-150, false}, {151, true}, {1000, true}, {-1000, true}} {
+		e, err := steel.LinearDelta(tc.dT)
+		if err != nil || (len(e.Warnings) > 0) != tc.warn || math.Abs(e.Strain-12e-6*float64(tc.dT)) > 1e-15 {
+			t.Errorf("steel LinearDelta(%v K) = %+v, %v; want strain 12e-6 dT, warning %v", float64(tc.dT), e, err, tc.warn)
+		}
+	}
 	water, _ := c.Get("water")
 	if _, err := water.Linear(units.Celsius(20), units.Celsius(30), Auto, false); err == nil {
 		t.Error("water has no linear coefficient, want an error")
