@@ -88,15 +88,16 @@ func (h *Handler) etag(c *gin.Context) string {
 }
 
 // etagMatch reports whether an If-None-Match header matches tag, by the
-// weak comparison RFC 9110 13.1.2 prescribes for it: "*" or any listed
-// tag equal to ours once a W/ prefix is removed.
+// weak comparison RFC 9110 13.1.2 prescribes for it: any listed tag equal
+// to ours once a W/ prefix is removed.
+//
+// "*" matches when a current representation exists, which only running
+// the calculation can tell (an invalid query, an unknown material have
+// none): it is not taken as a match, and the answer is sent in full.
 func etagMatch(header, tag string) bool {
 	header = strings.TrimSpace(header)
-	if header == "" {
+	if header == "" || header == "*" {
 		return false
-	}
-	if header == "*" {
-		return true
 	}
 	for _, t := range strings.Split(header, ",") {
 		t = strings.TrimSpace(t)

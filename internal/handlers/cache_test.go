@@ -65,7 +65,7 @@ func TestCacheIfNoneMatch(t *testing.T) {
 	r := batchTestHandler(t, Options{}).Router()
 	const target = "/v1/expansion/linear?length=48%20m&alpha=12e-6/K&delta_t=50%20K"
 	tag := getWith(r, target).Header().Get("ETag")
-	for _, inm := range []string{tag, "W/" + tag, `"other", ` + tag, "*"} {
+	for _, inm := range []string{tag, "W/" + tag, `"other", ` + tag} {
 		w := getWith(r, target, "If-None-Match", inm)
 		if w.Code != http.StatusNotModified || w.Body.Len() != 0 || w.Header().Get("ETag") != tag {
 			t.Errorf("If-None-Match %s: status %d, body %q, ETag %q; want 304, no body, %s", inm, w.Code, w.Body, w.Header().Get("ETag"), tag)
@@ -73,6 +73,21 @@ func TestCacheIfNoneMatch(t *testing.T) {
 	}
 	if w := getWith(r, target, "If-None-Match", `"other"`); w.Code != http.StatusOK {
 		t.Errorf("non-matching If-None-Match: status %d", w.Code)
+	}
+	// "*" matches only where a representation exists (RFC 9110 13.1.2):
+	// the service cannot tell without computing, so it answers in full,
+	// and an error stays an error.
+	for _, tc := range []struct {
+		target string
+		status int
+	}{{target, 200}, {"/v1/expansion/linear?length=x", 400}, {"/v1/materials/unobtainium", 404}} {
+		w := getWith(r, tc.target, "If-None-Match", "*")
+		if w.Code != tc.status {
+			t.Errorf("If-None-Match * on %s: status %d, want %d", tc.target, w.Code, tc.status)
+		}
+		if tc.status != 200 && w.Header().Get("Cache-Control") != "no-store" {
+			t.Errorf("If-None-Match * on %s: Cache-Control %q, want no-store", tc.target, w.Header().Get("Cache-Control"))
+		}
 	}
 }
 
