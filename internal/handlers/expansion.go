@@ -143,7 +143,9 @@ type AreaResults struct {
 //	@Router			/v1/expansion/area [post]
 func (h *Handler) area(p *params) (*Response, error) {
 	p.require("area", "length", "diameter")
-	p.exclusive("area", "length", "diameter")
+	if !p.exclusive("area", "length", "diameter") {
+		p.take("width") // it goes with length, which is contradicted
+	}
 	var areaM2, lengthM, widthM, diameterM float64
 	var gok bool
 	switch {

@@ -204,3 +204,22 @@ func TestVolumeBetaWinsOverMaterial(t *testing.T) {
 		t.Error("no warning that beta was used instead of the catalogue")
 	}
 }
+
+// Two shapes at once contradict each other: one 422 naming the second,
+// and no "unknown parameter" for it (contract: 422 for contradictory
+// inputs).
+func TestAreaShapesContradict(t *testing.T) {
+	r := newTestHandler(t).Router()
+	for _, tc := range []struct{ query, field, first string }{
+		{"diameter=12%20mm&area=1%20m2", "diameter", "area"},
+		{"length=2%20m&width=1%20m&area=2%20m2", "length", "area"},
+		{"length=2%20m&width=1%20m&diameter=80%20mm", "diameter", "length"},
+	} {
+		w := do(t, r, http.MethodGet, "/v1/expansion/area?"+tc.query+"&alpha=1e-5/K&delta_t=1%20K", "", "")
+		pr := decodeProblem(t, w)
+		if w.Code != http.StatusUnprocessableEntity || len(pr.Errors) != 1 || pr.Errors[0].Parameter != tc.field ||
+			!strings.Contains(pr.Errors[0].Detail, "contradicts "+tc.first) {
+			t.Errorf("%s: status %d, errors %+v; want 422 with one error: %s contradicts %s", tc.query, w.Code, pr.Errors, tc.field, tc.first)
+		}
+	}
+}

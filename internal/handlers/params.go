@@ -361,6 +361,9 @@ func (p *params) exclusive(names ...string) bool {
 	}
 	if len(given) > 1 {
 		p.unprocessable(given[1], "contradicts "+given[0]+": give only one of "+strings.Join(names, ", "))
+		for _, n := range given[1:] {
+			p.markUsed(n) // read, and contradicted: not unknown
+		}
 		return false
 	}
 	return true
