@@ -48,7 +48,16 @@ const (
 type batchSpec struct {
 	calcSpec
 	fields []resultField
+	checks []string // the names of the checks its results can carry
 }
+
+// tabular is implemented by results that are a table per case (a joint's
+// setting table): a batch row cannot hold one.
+type tabular interface{ table() }
+
+// checkNamer is implemented by results that carry checks: it lists every
+// check name they can hold, the check columns of a batch.
+type checkNamer interface{ checkNames() []string }
 
 // batchRoutes lists POST /v1/batch/{calculation}: one route whose
 // wildcard names any calculation that has result numbers.
@@ -56,10 +65,14 @@ func (h *Handler) batchRoutes() []route {
 	specs := map[string]batchSpec{}
 	for _, c := range h.calculations() {
 		fields := fieldsOf(reflect.TypeOf(c.results))
-		if len(fields) == 0 {
-			continue // only tables or charts: nothing to put in a row
+		if _, isTable := c.results.(tabular); isTable || len(fields) == 0 {
+			continue // a table or a chart per case: nothing to put in a row
 		}
-		specs[c.name] = batchSpec{calcSpec: c, fields: fields}
+		spec := batchSpec{calcSpec: c, fields: fields}
+		if cn, ok := c.results.(checkNamer); ok {
+			spec.checks = cn.checkNames()
+		}
+		specs[c.name] = spec
 	}
 	return []route{{http.MethodPost, "/v1/batch/*calculation", h.batch(specs)}}
 }
@@ -335,7 +348,7 @@ type batchReader interface {
 // batchWriter writes rows in one form.
 type batchWriter interface {
 	header(inputs []string, results []string) error
-	row(in *batchRow, res []resultItem, fields []resultField, warnings []string, errMsg string) error
+	row(c *computed) error
 	stop(msg string) error
 	end() error
 }
@@ -360,14 +373,17 @@ func (r *batchRun) serve() {
 		r.h.problem(r.c, nil, err)
 		return
 	}
-	results := make([]string, len(r.spec.fields))
+	results := make([]string, len(r.spec.fields), len(r.spec.fields)+len(r.spec.checks))
 	for i, f := range r.spec.fields {
 		results[i] = f.name + " [" + r.out.unitFor(f).Symbol + "]"
 	}
+	for _, n := range r.spec.checks {
+		results = append(results, "check_"+n)
+	}
 	if r.outCSV {
-		r.w = newCSVRowWriter(r.bw)
+		r.w = &csvRowWriter{w: r.bw, fields: r.spec.fields, checks: r.spec.checks}
 	} else {
-		jw := &jsonRowWriter{w: r.bw, results: results}
+		jw := &jsonRowWriter{w: r.bw, results: results, fields: r.spec.fields, checks: r.spec.checks}
 		if r.inCSV {
 			jw.fixed = []string{}
 		}
@@ -424,8 +440,8 @@ func (r *batchRun) serve() {
 			}
 			first = false
 		}
-		for _, c := range ch.rows {
-			if err := r.w.row(c.row, c.items, r.spec.fields, c.warnings, c.msg); err != nil {
+		for i := range ch.rows {
+			if err := r.w.row(&ch.rows[i]); err != nil {
 				return // the client went away
 			}
 		}
@@ -476,7 +492,7 @@ func (ch *batchChunk) grow() *computed {
 		c.row = &batchRow{vals: make(map[string]raw, 8)}
 	}
 	c.row.reset()
-	c.items, c.warnings, c.msg = c.items[:0], nil, ""
+	c.items, c.warnings, c.checks, c.msg = c.items[:0], nil, nil, ""
 	return c
 }
 
@@ -535,6 +551,7 @@ type computed struct {
 	row      *batchRow
 	items    []resultItem
 	warnings []string
+	checks   []Check
 	msg      string
 }
 
@@ -583,7 +600,7 @@ func (r *batchRun) flush() error {
 // runs it, and keeps in c its results in their output units, its warnings
 // or its error message; p is the worker's parameter reader.
 func (r *batchRun) compute(c *computed, columns []string, p *params) {
-	c.warnings = nil
+	c.warnings, c.checks = nil, nil
 	c.msg = r.computeRow(c, columns, p)
 }
 
@@ -626,7 +643,7 @@ func (r *batchRun) computeRow(c *computed, columns []string, p *params) string {
 	if !ok {
 		return "the inputs lead to a result that is not a finite number; check them for extreme values"
 	}
-	c.warnings = resp.Warnings
+	c.warnings, c.checks = resp.Warnings, checksOf(resp.Results)
 	return ""
 }
 
@@ -876,13 +893,11 @@ func cellText(v raw) string {
 // csvRowWriter writes rows as CSV, with CRLF line ends like format=csv.
 type csvRowWriter struct {
 	w      *bufio.Writer
+	fields []resultField
+	checks []string
 	width  int // columns
 	inputs []string
 	buf    []byte
-}
-
-func newCSVRowWriter(w *bufio.Writer) *csvRowWriter {
-	return &csvRowWriter{w: w}
 }
 
 func (w *csvRowWriter) header(inputs, results []string) error {
@@ -898,7 +913,8 @@ func (w *csvRowWriter) header(inputs, results []string) error {
 	return w.write(b)
 }
 
-func (w *csvRowWriter) row(in *batchRow, res []resultItem, fields []resultField, warnings []string, errMsg string) error {
+func (w *csvRowWriter) row(c *computed) error {
+	in, res := c.row, c.items
 	b := w.buf[:0]
 	for i, n := range w.inputs {
 		if i > 0 {
@@ -909,7 +925,7 @@ func (w *csvRowWriter) row(in *batchRow, res []resultItem, fields []resultField,
 		}
 	}
 	j := 0
-	for i, f := range fields {
+	for i, f := range w.fields {
 		if i > 0 || len(w.inputs) > 0 {
 			b = append(b, ',')
 		}
@@ -918,11 +934,28 @@ func (w *csvRowWriter) row(in *batchRow, res []resultItem, fields []resultField,
 			j++
 		}
 	}
+	for _, n := range w.checks {
+		b = append(b, ',')
+		if pass, ok := checkPassed(c.checks, n); ok {
+			b = append(b, passFail(pass)...)
+		}
+	}
 	b = append(b, ',')
-	b = appendCSVField(b, strings.Join(warnings, "; "))
+	b = appendCSVField(b, strings.Join(c.warnings, "; "))
 	b = append(b, ',')
-	b = appendCSVField(b, errMsg)
+	b = appendCSVField(b, c.msg)
 	return w.write(b)
+}
+
+// checkPassed finds the named check among cs: whether it passed, and
+// whether the row has it at all.
+func checkPassed(cs []Check, name string) (pass, ok bool) {
+	for _, c := range cs {
+		if c.Name == name {
+			return c.Pass, true
+		}
+	}
+	return false, false
 }
 
 func (w *csvRowWriter) stop(msg string) error {
@@ -964,7 +997,9 @@ func appendCSVField(b []byte, s string) []byte {
 // same keys as the CSV columns.
 type jsonRowWriter struct {
 	w       *bufio.Writer
-	results []string
+	results []string // the result keys, then the check keys
+	fields  []resultField
+	checks  []string
 	// fixed are the input columns of a CSV body, echoed in every row
 	// (empty cells as ""); nil for a JSON body, whose rows echo their
 	// own members.
@@ -989,7 +1024,8 @@ func (w *jsonRowWriter) open() {
 	w.n++
 }
 
-func (w *jsonRowWriter) row(in *batchRow, res []resultItem, fields []resultField, warnings []string, errMsg string) error {
+func (w *jsonRowWriter) row(c *computed) error {
+	in, res := c.row, c.items
 	w.buf = w.buf[:0]
 	w.open()
 	names := in.names
@@ -1020,7 +1056,7 @@ func (w *jsonRowWriter) row(in *batchRow, res []resultItem, fields []resultField
 		w.buf = append(w.buf, ',')
 	}
 	j := 0
-	for i, f := range fields {
+	for i, f := range w.fields {
 		w.buf = appendJSONString(w.buf, w.results[i])
 		w.buf = append(w.buf, ':')
 		if j < len(res) && res[j].name == f.name {
@@ -1031,10 +1067,20 @@ func (w *jsonRowWriter) row(in *batchRow, res []resultItem, fields []resultField
 		}
 		w.buf = append(w.buf, ',')
 	}
+	for i, n := range w.checks {
+		w.buf = appendJSONString(w.buf, w.results[len(w.fields)+i])
+		w.buf = append(w.buf, ':')
+		if pass, ok := checkPassed(c.checks, n); ok {
+			w.buf = appendJSONString(w.buf, passFail(pass))
+		} else {
+			w.buf = append(w.buf, "null"...)
+		}
+		w.buf = append(w.buf, ',')
+	}
 	w.buf = append(w.buf, `"warnings":`...)
-	w.buf = appendJSONString(w.buf, strings.Join(warnings, "; "))
+	w.buf = appendJSONString(w.buf, strings.Join(c.warnings, "; "))
 	w.buf = append(w.buf, `,"error":`...)
-	w.buf = appendJSONString(w.buf, errMsg)
+	w.buf = appendJSONString(w.buf, c.msg)
 	w.buf = append(w.buf, '}')
 	_, err := w.w.Write(w.buf)
 	return err

@@ -203,13 +203,13 @@ func BenchmarkEncode(b *testing.B) {
 	b.Run("csv", func(b *testing.B) {
 		b.ReportAllocs()
 		for b.Loop() {
-			_ = csvBody(items, nil)
+			_ = csvBody(items, nil, resp.Warnings, resp.Cautions)
 		}
 	})
 	b.Run("xml", func(b *testing.B) {
 		b.ReportAllocs()
 		for b.Loop() {
-			_ = xmlBody(resp.Calculation, items, nil, resp.Warnings)
+			_ = xmlBody(resp.Calculation, items, nil, resp.Warnings, resp.Cautions)
 		}
 	})
 }

@@ -7,8 +7,10 @@ import (
 	"image/color"
 	"math"
 	"reflect"
+	"strings"
 
 	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/font"
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
@@ -27,11 +29,11 @@ func (r *ScheduleResults) render(out *outputOptions, resp *Response) ([]byte, st
 	formatChecks(r.Checks, out)
 	switch out.format {
 	case "csv":
-		return r.csv(), contentTypes["csv"], nil
+		return r.csv(resp), contentTypes["csv"], nil
 	case "xml":
 		return r.xml(resp), contentTypes["xml"], nil
 	case "svg", "png":
-		b, err := r.chart(out.format)
+		b, err := r.chart(out.format, resp)
 		if err != nil {
 			return nil, "", err
 		}
@@ -88,8 +90,11 @@ func (row *ScheduleRow) value(f resultField) *Value {
 }
 
 // csv is the table: a header naming each column with its unit, then a
-// row per installation temperature.
-func (r *ScheduleResults) csv() []byte {
+// row per installation temperature. The checks of each row follow as
+// columns check_<name> holding pass or fail, then the warnings and the
+// cautions of the whole table, on every row, so that no row is read
+// without them.
+func (r *ScheduleResults) csv(resp *Response) []byte {
 	var b bytes.Buffer
 	cols := r.columns()
 	for i, f := range cols {
@@ -98,7 +103,17 @@ func (r *ScheduleResults) csv() []byte {
 		}
 		b.WriteString(csvHeader(f.name, r.Rows[0].value(f).Unit))
 	}
-	b.WriteString("\r\n")
+	var names []string
+	if len(r.rowChecks) > 0 {
+		for _, c := range r.rowChecks[0] {
+			names = append(names, c.Name)
+			b.WriteString(",check_" + c.Name)
+		}
+	}
+	b.WriteString(",warnings,cautions\r\n")
+	notes := appendCSVField(nil, strings.Join(resp.Warnings, "; "))
+	notes = append(notes, ',')
+	notes = appendCSVField(notes, strings.Join(resp.Cautions, " "))
 	for i := range r.Rows {
 		for j, f := range cols {
 			if j > 0 {
@@ -106,10 +121,19 @@ func (r *ScheduleResults) csv() []byte {
 			}
 			b.Write(units.AppendNumber(nil, float64(r.Rows[i].value(f).Value)))
 		}
+		for j := range names {
+			b.WriteString("," + passFail(r.rowChecks[i][j].Pass))
+		}
+		b.WriteByte(',')
+		b.Write(notes)
 		b.WriteString("\r\n")
 	}
 	return b.Bytes()
 }
+
+// table marks results that are a table per case: a batch row cannot
+// hold them, so they are not offered as a batch.
+func (*ScheduleResults) table() {}
 
 // xml is the table as flat XML: the summary results, one <row> per
 // installation temperature, the checks and the warnings.
@@ -143,11 +167,7 @@ func (r *ScheduleResults) xml(resp *Response) []byte {
 		esc(c.Detail)
 		b.WriteString("</check>")
 	}
-	for _, w := range resp.Warnings {
-		b.WriteString("<warning>")
-		esc(w)
-		b.WriteString("</warning>")
-	}
+	appendNotes(&b, resp.Warnings, resp.Cautions)
 	b.WriteString("</result>\n")
 	return b.Bytes()
 }
@@ -157,6 +177,7 @@ const (
 	chartWidth  = 16 * vg.Centimeter
 	chartHeight = 11 * vg.Centimeter
 	chartDPI    = 200
+	chartMargin = 4 * vg.Millimeter // around the notes below the plot
 )
 
 // displayUnit writes a unit symbol as a printed chart shows it.
@@ -178,7 +199,7 @@ func displayUnit(sym string) string {
 // vertical lines and max_gap and min_gap as horizontal ones. Curves
 // differ by dash pattern as well as colour so that a black-and-white
 // print tells them apart.
-func (r *ScheduleResults) chart(format string) ([]byte, error) {
+func (r *ScheduleResults) chart(format string, resp *Response) ([]byte, error) {
 	if len(r.Rows) == 0 {
 		return nil, newError(errUnprocessable, "the schedule has no rows to draw")
 	}
@@ -319,19 +340,58 @@ func (r *ScheduleResults) chart(format string) ([]byte, error) {
 	}
 	p.Add(lb)
 
+	// Below the plot: the warnings and cautions, since a printed chart
+	// travels without the rest of the answer.
+	noteStyle := draw.TextStyle{Color: color.Black, Font: font.From(plot.DefaultFont, vg.Points(7)), Handler: plot.DefaultTextHandler}
+	var notes []string
+	for _, w := range resp.Warnings {
+		notes = append(notes, wrapText(noteStyle, "Warning: "+w, chartWidth-2*chartMargin)...)
+	}
+	for _, cn := range resp.Cautions {
+		notes = append(notes, wrapText(noteStyle, cn, chartWidth-2*chartMargin)...)
+	}
+	lineH := noteStyle.Height("Mg") * 1.15
+	footer := vg.Length(len(notes))*lineH + chartMargin
+	height := chartHeight + footer
+
 	var c vg.CanvasWriterTo
 	switch format {
 	case "svg":
-		c = vgsvg.New(chartWidth, chartHeight)
+		c = vgsvg.New(chartWidth, height)
 	default:
-		c = vgimg.PngCanvas{Canvas: vgimg.NewWith(vgimg.UseWH(chartWidth, chartHeight), vgimg.UseDPI(chartDPI), vgimg.UseBackgroundColor(color.White))}
+		c = vgimg.PngCanvas{Canvas: vgimg.NewWith(vgimg.UseWH(chartWidth, height), vgimg.UseDPI(chartDPI), vgimg.UseBackgroundColor(color.White))}
 	}
-	p.Draw(draw.New(c))
+	dc := draw.New(c)
+	p.Draw(draw.Crop(dc, 0, 0, footer, 0))
+	for i, n := range notes {
+		dc.FillText(noteStyle, vg.Point{X: dc.Min.X + chartMargin, Y: dc.Min.Y + footer - vg.Length(i+1)*lineH}, n)
+	}
 	var b bytes.Buffer
 	if _, err := c.WriteTo(&b); err != nil {
 		return nil, err
 	}
 	return b.Bytes(), nil
+}
+
+// wrapText breaks txt at spaces into lines no wider than width.
+func wrapText(sty draw.TextStyle, txt string, width vg.Length) []string {
+	var lines []string
+	line := ""
+	for _, w := range strings.Fields(txt) {
+		if line != "" && sty.Width(line+" "+w) > width {
+			lines = append(lines, line)
+			line = w
+			continue
+		}
+		if line != "" {
+			line += " "
+		}
+		line += w
+	}
+	if line != "" {
+		lines = append(lines, line)
+	}
+	return lines
 }
 
 func roundTo(v float64, digits int) float64 {

@@ -576,7 +576,8 @@ func (h *Handler) restraint(p *params) (*Response, error) {
 				u := float64(iv.dT) / dtcr
 				res.BucklingUtilisation = si(u)
 				if u >= 1 {
-					resp.Cautions = append(resp.Cautions, "The temperature rise reaches the Euler critical rise: the restrained member buckles (a rail or pipeline can snake out of line). Provide expansion joints, loops or lateral restraint.")
+					// A concern of these inputs: a warning, which every format carries.
+					resp.Warnings = append(resp.Warnings, "the temperature rise reaches the Euler critical rise (buckling_utilisation "+formatRounded(u)+"): the restrained member buckles (a rail or pipeline can snake out of line); provide expansion joints, loops or lateral restraint")
 				}
 			}
 			if hasFy && calc.EulerStress(e, radius, kFactor, length) > fy {

@@ -284,9 +284,9 @@ func (h *Handler) write(c *gin.Context, out *outputOptions, resp *Response, item
 			return buf
 		}
 	case "csv":
-		body = csvBody(items, checksOf(resp.Results))
+		body = csvBody(items, checksOf(resp.Results), resp.Warnings, resp.Cautions)
 	case "xml":
-		body = xmlBody(resp.Calculation, items, checksOf(resp.Results), resp.Warnings)
+		body = xmlBody(resp.Calculation, items, checksOf(resp.Results), resp.Warnings, resp.Cautions)
 	default:
 		if typeOf(reflect.TypeOf(resp.Results)).valuesOnly {
 			buf = appendResponse(buf, resp, items)

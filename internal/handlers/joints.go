@@ -72,6 +72,36 @@ type GapResults struct {
 
 func (r *GapResults) checkList() []Check { return r.Checks }
 
+// checkNames lists every check a gap can have, in the order checks adds
+// them: the check columns of a batch.
+func (*GapResults) checkNames() []string { return gapCheckNames }
+
+// gapCheckNames are the names of jointInput.checks, each with the warning
+// a failing one adds to the answer, so that a client that reads only the
+// warnings (a batch row, a spreadsheet) still sees it.
+var (
+	gapCheckNames    = []string{"gap_stays_open", "min_gap_kept", "within_max_gap", "sealant_extension", "sealant_compression"}
+	gapCheckWarnings = map[string]string{
+		"gap_stays_open":      "the joint closes before t_max: the members bear on each other, so the restrained member must be checked for stress and buckling",
+		"min_gap_kept":        "the gap at t_max is below min_gap",
+		"within_max_gap":      "the gap at t_min is wider than max_gap",
+		"sealant_extension":   "the sealant's extension exceeds its movement capability",
+		"sealant_compression": "the sealant's compression exceeds its movement capability",
+	}
+)
+
+// failedChecks returns the warning of each failing check, naming it;
+// where says where it fails ("" for a single setting).
+func failedChecks(cs []Check, where string) []string {
+	var ws []string
+	for _, c := range cs {
+		if !c.Pass {
+			ws = append(ws, "check "+c.Name+" fails"+where+": "+gapCheckWarnings[c.Name])
+		}
+	}
+	return ws
+}
+
 // render writes the check details in the response's units and leaves the
 // body to the generic formats.
 func (r *GapResults) render(out *outputOptions, _ *Response) ([]byte, string, error) {
@@ -376,6 +406,7 @@ func (h *Handler) gap(p *params) (*Response, error) {
 	}
 	resp := &Response{Results: res, Method: gapMethod(in), Cautions: jointCautions}
 	h.citeJoint(resp, in)
+	resp.Warnings = append(resp.Warnings, failedChecks(res.Checks, "")...)
 	if !in.hasInstall {
 		resp.Warnings = append(resp.Warnings, "no t_install: the installation may be at either extreme, so closing and opening are each the full movement range and the gaps are the conservative envelope; give t_install for the gaps of a known setting day")
 	}
@@ -434,6 +465,7 @@ type ScheduleResults struct {
 	Rows          []ScheduleRow `json:"rows"`
 	Checks        []Check       `json:"checks"`
 
+	rowChecks  [][]Check             // the checks of each row, for the CSV table
 	rowUnits   map[string]units.Unit // <row field>_unit overrides
 	tMin, tMax units.Temperature     // design extremes, for the chart
 	maxGap     float64               // 0: none
@@ -551,13 +583,14 @@ func (h *Handler) schedule(p *params) (*Response, error) {
 		res.Rows = append(res.Rows, row)
 		perRow = append(perRow, rowIn.checks(s))
 	}
-	res.Checks = summarise(perRow, ts)
+	res.Checks, res.rowChecks = summarise(perRow, ts), perRow
 	method := "each row: " + gapMethod(in)
 	if in.hasGap {
 		method += "; the reference gap_install at t_install shifted to each row by alpha L (t_install - t)"
 	}
 	resp := &Response{Results: res, Method: method, Cautions: jointCautions}
 	h.citeJoint(resp, in)
+	resp.Warnings = append(resp.Warnings, failedChecks(res.Checks, " in some rows of the table")...)
 	return resp, nil
 }
 

@@ -170,8 +170,9 @@ func textBody(items []resultItem, result string) []byte {
 // csvBody is the format=csv answer: a header row naming each result with
 // its unit, and one data row.
 // Checks, where a calculation has them, follow as columns check_<name>
-// holding pass or fail.
-func csvBody(items []resultItem, checks []Check) []byte {
+// holding pass or fail; then the warnings (joined by "; ") and the
+// cautions, so that a table opened on its own still carries them.
+func csvBody(items []resultItem, checks []Check, warnings, cautions []string) []byte {
 	var b bytes.Buffer
 	for i, it := range items {
 		if i > 0 {
@@ -182,7 +183,7 @@ func csvBody(items []resultItem, checks []Check) []byte {
 	for _, c := range checks {
 		b.WriteString(",check_" + c.Name)
 	}
-	b.WriteString("\r\n")
+	b.WriteString(",warnings,cautions\r\n")
 	for i, it := range items {
 		if i > 0 {
 			b.WriteByte(',')
@@ -190,12 +191,12 @@ func csvBody(items []resultItem, checks []Check) []byte {
 		b.Write(units.AppendNumber(nil, it.value))
 	}
 	for _, c := range checks {
-		if c.Pass {
-			b.WriteString(",pass")
-		} else {
-			b.WriteString(",fail")
-		}
+		b.WriteString("," + passFail(c.Pass))
 	}
+	b.WriteByte(',')
+	b.Write(appendCSVField(nil, strings.Join(warnings, "; ")))
+	b.WriteByte(',')
+	b.Write(appendCSVField(nil, strings.Join(cautions, " ")))
 	b.WriteString("\r\n")
 	return b.Bytes()
 }
@@ -218,7 +219,7 @@ func csvHeader(name, unit string) string {
 //
 // Checks, where a calculation has them, are elements
 // <check name="gap_stays_open" pass="true">detail</check>.
-func xmlBody(calculation string, items []resultItem, checks []Check, warnings []string) []byte {
+func xmlBody(calculation string, items []resultItem, checks []Check, warnings, cautions []string) []byte {
 	var b bytes.Buffer
 	b.WriteString(`<?xml version="1.0" encoding="UTF-8"?>` + "\n")
 	b.WriteString(`<result calculation="`)
@@ -238,11 +239,29 @@ func xmlBody(calculation string, items []resultItem, checks []Check, warnings []
 		xml.EscapeText(&b, []byte(c.Detail))
 		b.WriteString("</check>")
 	}
-	for _, w := range warnings {
-		b.WriteString("<warning>")
-		xml.EscapeText(&b, []byte(w))
-		b.WriteString("</warning>")
-	}
+	appendNotes(&b, warnings, cautions)
 	b.WriteString("</result>\n")
 	return b.Bytes()
+}
+
+// appendNotes writes the warnings and cautions of an XML answer, one
+// <warning> or <caution> element each.
+func appendNotes(b *bytes.Buffer, warnings, cautions []string) {
+	for _, w := range warnings {
+		b.WriteString("<warning>")
+		xml.EscapeText(b, []byte(w))
+		b.WriteString("</warning>")
+	}
+	for _, c := range cautions {
+		b.WriteString("<caution>")
+		xml.EscapeText(b, []byte(c))
+		b.WriteString("</caution>")
+	}
+}
+
+func passFail(pass bool) string {
+	if pass {
+		return "pass"
+	}
+	return "fail"
 }

@@ -8,11 +8,13 @@ import (
 	"net/http/httptest"
 	"os"
 	"path/filepath"
+	"slices"
 	"strconv"
 	"strings"
 	"testing"
 
 	"github.com/google/go-cmp/cmp"
+	"github.com/google/go-cmp/cmp/cmpopts"
 )
 
 // The golden files under testdata/output are rewritten with
@@ -118,19 +120,36 @@ func TestFormatsCarryTheJSONNumbers(t *testing.T) {
 	r := newTestHandler(t).Router()
 	for _, tc := range outputCases {
 		t.Run(tc.name, func(t *testing.T) {
-			want, order := jsonNumbers(t, do(t, r, http.MethodGet, tc.target, "", ""))
+			jw := do(t, r, http.MethodGet, tc.target, "", "")
+			want, order := jsonNumbers(t, jw)
+			var notes struct{ Warnings, Cautions []string }
+			if err := json.Unmarshal(jw.Body.Bytes(), &notes); err != nil {
+				t.Fatal(err)
+			}
+			if len(notes.Cautions) == 0 {
+				t.Fatal("the JSON answer carries no cautions")
+			}
 
+			// CSV: the results, then the warnings and the cautions.
 			w := do(t, r, http.MethodGet, tc.target+"&format=csv", "", "")
 			recs := readCSV(t, w.Body.Bytes())
 			if len(recs) != 2 {
 				t.Fatalf("CSV has %d rows, want a header and one row", len(recs))
 			}
-			if diff := cmp.Diff(order, recs[0]); diff != "" {
+			if diff := cmp.Diff(append(slices.Clone(order), "warnings", "cautions"), recs[0]); diff != "" {
 				t.Errorf("CSV header (-JSON order +CSV):\n%s", diff)
 			}
-			for i, h := range recs[0] {
+			for i, h := range recs[0][:len(order)] {
 				if recs[1][i] != want[h] {
 					t.Errorf("CSV %s = %q, JSON %q", h, recs[1][i], want[h])
+				}
+			}
+			if n := len(order); len(recs[1]) == n+2 {
+				if got, want := recs[1][n], strings.Join(notes.Warnings, "; "); got != want {
+					t.Errorf("CSV warnings = %q, JSON %q", got, want)
+				}
+				if got, want := recs[1][n+1], strings.Join(notes.Cautions, " "); got != want {
+					t.Errorf("CSV cautions = %q, JSON %q", got, want)
 				}
 			}
 
@@ -146,9 +165,14 @@ func TestFormatsCarryTheJSONNumbers(t *testing.T) {
 			if err := xml.Unmarshal(w.Body.Bytes(), &doc); err != nil {
 				t.Fatal(err)
 			}
-			var got []string
+			var got, warnings, cautions []string
 			for _, it := range doc.Items {
-				if it.XMLName.Local == "warning" {
+				switch it.XMLName.Local {
+				case "warning":
+					warnings = append(warnings, it.Text)
+					continue
+				case "caution":
+					cautions = append(cautions, it.Text)
 					continue
 				}
 				key := it.XMLName.Local + " [" + it.Unit + "]"
@@ -159,6 +183,12 @@ func TestFormatsCarryTheJSONNumbers(t *testing.T) {
 			}
 			if diff := cmp.Diff(order, got); diff != "" {
 				t.Errorf("XML elements (-JSON order +XML):\n%s", diff)
+			}
+			if diff := cmp.Diff(notes.Warnings, warnings, cmpopts.EquateEmpty()); diff != "" {
+				t.Errorf("XML warnings (-JSON +XML):\n%s", diff)
+			}
+			if diff := cmp.Diff(notes.Cautions, cautions); diff != "" {
+				t.Errorf("XML cautions (-JSON +XML):\n%s", diff)
 			}
 
 			for i, key := range order {

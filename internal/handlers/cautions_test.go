@@ -1,0 +1,136 @@
+package handlers
+
+import (
+	"encoding/json"
+	"net/http"
+	"slices"
+	"strings"
+	"testing"
+)
+
+// A joint that closes, in every form a client can ask for. Demo data: a
+// 60 m steel footbridge deck set at 12 degC with a 20 mm gap, designed
+// for -36..59 degC. closing = alpha L (t_max - t_install) (AASHTO LRFD
+// eq. 3.12.2.3-1 split at the installation temperature, from memory of
+// the specification) = 12e-6/K x 60 m x 47 K = 33.84 mm, so the gap at
+// t_max is 20 - 33.84 = -13.84 mm: the joint closes.
+const closingJoint = "length=60%20m&alpha=12e-6/K&t_min=-36%20degC&t_max=59%20degC&t_install=12%20degC&gap_install=20%20mm"
+
+const closingWarning = "check gap_stays_open fails: the joint closes before t_max"
+
+func TestFailingCheckIsAWarning(t *testing.T) {
+	r := newTestHandler(t).Router()
+	w := do(t, r, http.MethodGet, "/v1/joints/gap?"+closingJoint, "", "")
+	var body struct {
+		Results struct {
+			GapAtTMax Value   `json:"gap_at_t_max"`
+			Checks    []Check `json:"checks"`
+		}
+		Warnings, Cautions []string
+	}
+	if err := json.Unmarshal(w.Body.Bytes(), &body); err != nil {
+		t.Fatal(err)
+	}
+	if body.Results.GapAtTMax.Value != -13.84 {
+		t.Errorf("gap_at_t_max = %v, want -13.84 mm", body.Results.GapAtTMax.Value)
+	}
+	if !hasPrefixIn(body.Warnings, closingWarning) {
+		t.Errorf("warnings %q lack %q", body.Warnings, closingWarning)
+	}
+	if !slices.Contains(body.Cautions, standingCautions[2]) {
+		t.Errorf("cautions %q lack the standing ones", body.Cautions)
+	}
+
+	// A passing joint has no such warning: 60 mm leaves 26.16 mm at t_max.
+	w = do(t, r, http.MethodGet, "/v1/joints/gap?"+strings.Replace(closingJoint, "gap_install=20", "gap_install=60", 1), "", "")
+	if strings.Contains(w.Body.String(), "check gap_stays_open fails") {
+		t.Errorf("a joint that stays open warns that it closes: %s", w.Body.String())
+	}
+}
+
+func TestBatchRowsCarryChecks(t *testing.T) {
+	r := batchTestHandler(t, Options{}).Router()
+	body := "length,alpha,t_min,t_max,t_install,gap_install,max_gap\n" +
+		"60 m,12e-6/K,-36 degC,59 degC,12 degC,20 mm,100 mm\n" + // closes (see closingJoint)
+		"60 m,12e-6/K,-36 degC,59 degC,12 degC,60 mm,\n" // stays open, no max_gap check
+	w := post(t, r, "/v1/batch/joints/gap", "text/csv", "", body)
+	if w.Code != http.StatusOK {
+		t.Fatalf("status %d: %s", w.Code, w.Body)
+	}
+	recs := readCSV(t, w.Body.Bytes())
+	col := map[string]int{}
+	for i, h := range recs[0] {
+		col[h] = i
+	}
+	for _, name := range gapCheckNames {
+		if _, ok := col["check_"+name]; !ok {
+			t.Errorf("no column check_%s in %q", name, recs[0])
+		}
+	}
+	if len(recs) != 3 {
+		t.Fatalf("%d records, want a header and 2 rows", len(recs))
+	}
+	closes, open := recs[1], recs[2]
+	if got := closes[col["check_gap_stays_open"]]; got != "fail" {
+		t.Errorf("closing joint: check_gap_stays_open = %q, want fail", got)
+	}
+	if got := closes[col["check_within_max_gap"]]; got != "pass" {
+		t.Errorf("closing joint: check_within_max_gap = %q, want pass (gap at t_min 54.56 mm)", got)
+	}
+	if !strings.Contains(closes[col["warnings"]], closingWarning) {
+		t.Errorf("closing joint: warnings %q lack %q", closes[col["warnings"]], closingWarning)
+	}
+	if got := open[col["check_gap_stays_open"]]; got != "pass" {
+		t.Errorf("open joint: check_gap_stays_open = %q, want pass", got)
+	}
+	if got := open[col["check_within_max_gap"]]; got != "" {
+		t.Errorf("open joint without max_gap: check_within_max_gap = %q, want empty", got)
+	}
+
+	// The JSON answer has the same keys: "fail", "pass" or null.
+	w = post(t, r, "/v1/batch/joints/gap?format=json", "text/csv", "", body)
+	var rows []map[string]any
+	if err := json.Unmarshal(w.Body.Bytes(), &rows); err != nil {
+		t.Fatalf("%v: %s", err, w.Body)
+	}
+	if rows[0]["check_gap_stays_open"] != "fail" || rows[1]["check_within_max_gap"] != nil {
+		t.Errorf("JSON rows: %v", rows)
+	}
+}
+
+// A setting table is a table per case: it is not offered as a batch.
+func TestScheduleIsNoBatch(t *testing.T) {
+	r := batchTestHandler(t, Options{}).Router()
+	w := post(t, r, "/v1/batch/joints/gap/schedule", "text/csv", "", "length,alpha,t_min,t_max,min_gap\n60 m,12e-6/K,-25 degC,50 degC,20 mm\n")
+	if w.Code != http.StatusNotFound || !strings.Contains(w.Body.String(), "joints/gap") {
+		t.Errorf("status %d, body %s; want 404 listing the batches", w.Code, w.Body)
+	}
+}
+
+// The chart of a setting table prints its warnings and cautions below
+// the plot: a printed chart travels alone.
+func TestChartCarriesCautions(t *testing.T) {
+	r := newTestHandler(t).Router()
+	target := "/v1/joints/gap/schedule?length=60%20m&alpha=12e-6/K&t_min=-25%20degC&t_max=50%20degC&min_gap=20%20mm&max_gap=50%20mm&format=svg"
+	w := do(t, r, http.MethodGet, target, "", "")
+	if w.Code != http.StatusOK {
+		t.Fatalf("status %d: %s", w.Code, w.Body)
+	}
+	svg := w.Body.String()
+	// max_gap 50 mm is below min_gap + range = 20 + 54 = 74 mm (alpha L
+	// (t_max - t_min), AASHTO LRFD eq. 3.12.2.3-1, from memory): it fails.
+	for _, want := range []string{"check within_max_gap fails", "Preliminary engineering calculation", "licensed engineer"} {
+		if !strings.Contains(svg, want) {
+			t.Errorf("the chart lacks %q", want)
+		}
+	}
+}
+
+func hasPrefixIn(list []string, prefix string) bool {
+	for _, s := range list {
+		if strings.HasPrefix(s, prefix) {
+			return true
+		}
+	}
+	return false
+}
