@@ -1,6 +1,9 @@
 package units
 
-import "sort"
+import (
+	"sort"
+	"strconv"
+)
 
 // symbol is one entry of the unit table: the SI value of one unit, and
 // for temperature scales the offset of the scale's zero.
@@ -161,6 +164,20 @@ func Symbols() []SymbolInfo {
 			out = append(out, SymbolInfo{Symbol: p + s, Dimension: u.dim.String(), Factor: u.factor * f, Name: prefixName[p] + u.note})
 		}
 	}
+	seen := map[string]bool{}
+	for _, si := range out {
+		seen[si.Symbol] = true
+	}
+	for _, f := range commonForms {
+		u, err := ParseUnit(f)
+		if err != nil || seen[f] {
+			panic("units: common form " + f + " is not a new valid unit") // caught by the tests
+		}
+		// The factor to 15 digits: 1/degF is 1.8, not the 1.7999999999999998
+		// that dividing by the float64 of 5/9 gives.
+		factor, _ := strconv.ParseFloat(strconv.FormatFloat(u.Factor, 'g', 15, 64), 64)
+		out = append(out, SymbolInfo{Symbol: f, Dimension: u.Dim.String(), Factor: factor, Name: "compound of the symbols above"})
+	}
 	sort.Slice(out, func(i, j int) bool {
 		if out[i].Dimension != out[j].Dimension {
 			return out[i].Dimension < out[j].Dimension
@@ -168,6 +185,17 @@ func Symbols() []SymbolInfo {
 		return out[i].Symbol < out[j].Symbol
 	})
 	return out
+}
+
+// commonForms are compound units the trade writes every day, listed
+// beside the simple symbols: any other product, quotient or power of
+// those is accepted as well.
+var commonForms = []string{
+	"m2", "cm2", "mm2", "in2", "ft2", "m^2",
+	"m3", "cm3", "mm3", "in3", "ft3",
+	"1/K", "1/degC", "1/degF", "ppm/K", "ppm/degC", "ppm/degF", "um/(m*K)", "in/(in*degF)",
+	"N/mm2", "N/m2", "kN/m2", "kN/mm", "kN/m", "kN*m", "kg/m3",
+	"mm4", "cm4", "m4", "in4",
 }
 
 var prefixName = map[string]string{

@@ -1004,10 +1004,14 @@ func TestSymbols(t *testing.T) {
 			}
 		}
 	}
-	// The symbols the service promises.
+	// The symbols the service promises (the contract's list, compound
+	// forms included).
 	promised := []string{"m", "cm", "mm", "um", "µm", "in", "ft", "yd", "L", "mL", "gal",
 		"K", "degC", "degF", "degR", "°C", "°F", "°R", "Cel", "[degF]",
-		"Pa", "kPa", "MPa", "GPa", "psi", "ksi", "Msi", "N", "kN", "MN", "lbf", "kip"}
+		"Pa", "kPa", "MPa", "GPa", "psi", "ksi", "Msi", "N", "kN", "MN", "lbf", "kip",
+		"m2", "mm2", "cm2", "in2", "ft2", "m^2", "m3", "in3", "ft3",
+		"1/K", "1/degC", "1/degF", "ppm/K", "ppm/degC", "ppm/degF", "um/(m*K)", "in/(in*degF)",
+		"N/mm2", "mm4", "cm4", "m4", "in4"}
 	for _, s := range promised {
 		t.Run(s, func(t *testing.T) {
 			info, ok := bySym[s]
@@ -1023,11 +1027,10 @@ func TestSymbols(t *testing.T) {
 			}
 		})
 	}
-	// Powers are not listed, but parse.
-	for _, s := range []string{"m2", "mm2", "cm2", "in2", "ft2", "m3", "in3", "ft3", "mm4", "cm4", "in4"} {
-		if _, err := units.ParseUnit(s); err != nil {
-			t.Errorf("ParseUnit(%q): %v", s, err)
-		}
+	// A listed factor reads as its exact value: 1/degF is 1.8 per K
+	// (NIST SP 811: 1 degF interval = 5/9 K exactly).
+	if f := bySym["1/degF"].Factor; f != 1.8 {
+		t.Errorf("Symbols()[1/degF] factor %v, want 1.8", f)
 	}
 	// Spot values, from independent sources.
 	spot := []struct {
