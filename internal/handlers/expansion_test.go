@@ -223,3 +223,15 @@ func TestAreaShapesContradict(t *testing.T) {
 		}
 	}
 }
+
+// alpha_model=curve asks for a catalogue curve; with an explicit alpha
+// there is none to use, and the answer says so rather than ignoring it.
+func TestCurveModelWithExplicitAlphaWarns(t *testing.T) {
+	r := newTestHandler(t).Router()
+	d := decode(t, do(t, r, http.MethodGet, "/v1/expansion/linear?length=48%20m&alpha=12e-6/K&t_initial=20%20degC&t_final=70%20degC&alpha_model=curve", "", ""))
+	if !anyContains(d.Warnings, "alpha_model=curve") {
+		t.Errorf("no warning that the curve model does not apply: %v", d.Warnings)
+	}
+	// 12e-6/K x 48 m x 50 K = 28.8 mm (dL = alpha L dT, ASTM E228 mean coefficient, from memory).
+	checkResult(t, d, "delta_length", 28.8, "mm", 1e-12, len(standingCautions))
+}

@@ -83,6 +83,9 @@ func (p *params) strain(alphaName, materialName string, iv interval, ivOK bool, 
 		if hasMat {
 			c.Warnings = append(c.Warnings, alphaName+" was given, so it was used instead of the catalogue coefficient of "+m.ID)
 		}
+		if model == materials.CurveFit {
+			c.Warnings = append(c.Warnings, "alpha_model=curve applies to a catalogue material's curves: the constant "+alphaName+" given was used")
+		}
 		return c, true
 	}
 	if m.Alpha == nil {
