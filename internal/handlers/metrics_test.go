@@ -8,6 +8,7 @@ import (
 	"github.com/prometheus/client_golang/prometheus/collectors"
 	"github.com/prometheus/client_golang/prometheus/testutil/promlint"
 	dto "github.com/prometheus/client_model/go"
+	"go.uber.org/zap/zapcore"
 )
 
 // opsAllowedLabels are the only label names a series may carry: each
@@ -86,6 +87,16 @@ func TestMetricsLint(t *testing.T) {
 	for _, want := range []string{"thermal_http_requests_total", "thermal_http_request_duration_seconds", "thermal_calculation_errors_total", "thermal_build_info"} {
 		if !seen[want] {
 			t.Errorf("no metric %s gathered", want)
+		}
+	}
+}
+
+// A 503 (draining, shedding) is expected operation: logged as a warning,
+// not as an error of the service (common practice, no published source).
+func TestLevelFor(t *testing.T) {
+	for status, want := range map[int]zapcore.Level{200: zapcore.InfoLevel, 404: zapcore.InfoLevel, 500: zapcore.ErrorLevel, 503: zapcore.WarnLevel} {
+		if got := levelFor(status); got != want {
+			t.Errorf("levelFor(%d) = %v, want %v", status, got, want)
 		}
 	}
 }

@@ -94,8 +94,14 @@ func (h *Handler) observe(c *gin.Context) {
 	}
 }
 
+// levelFor is the log level of a request's line: error for a failure
+// of the service, warn for a 503 (draining, or shedding load: expected
+// operation, not a fault), info otherwise.
 func levelFor(status int) zapcore.Level {
-	if status >= 500 {
+	switch {
+	case status == http.StatusServiceUnavailable:
+		return zapcore.WarnLevel
+	case status >= 500:
 		return zapcore.ErrorLevel
 	}
 	return zapcore.InfoLevel
