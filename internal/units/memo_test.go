@@ -43,3 +43,23 @@ func TestParsedUnitsMemo(t *testing.T) {
 		t.Errorf("memo holds %d expressions, bound %d", n, maxParsedUnits)
 	}
 }
+
+// A message quotes an oversized input shortened, with its length (common
+// practice, no published source).
+func TestQuoteShortensLongInputs(t *testing.T) {
+	long := strings.Repeat("4", 7000) + " mtr"
+	_, err := Parse(long)
+	if err == nil {
+		t.Fatal("no error")
+	}
+	if msg := err.Error(); len(msg) > 300 || !strings.Contains(msg, "(7004 bytes)") {
+		t.Errorf("message of %d bytes: %.200s", len(msg), msg)
+	}
+	if got := quote("30 µm"); got != `"30 µm"` {
+		t.Errorf("quote(short) = %s", got)
+	}
+	// The cut never splits a rune: 79 ASCII bytes, then µ (2 bytes).
+	if got := quote(strings.Repeat("a", 79) + "µµ"); !strings.HasPrefix(got, `"`+strings.Repeat("a", 79)+`"...`) {
+		t.Errorf("quote cut inside a rune: %s", got)
+	}
+}

@@ -7,6 +7,7 @@ import (
 	"strings"
 	"sync"
 	"sync/atomic"
+	"unicode/utf8"
 )
 
 // Errors reported by the parser, wrapped in *Error. Test them with errors.Is.
@@ -30,6 +31,23 @@ func (e *Error) Error() string { return e.Msg }
 
 // Unwrap returns the sentinel, for errors.Is.
 func (e *Error) Unwrap() error { return e.Err }
+
+// maxQuoted bounds the input a message quotes: a message names the
+// input, it need not echo a whole oversized one back.
+const maxQuoted = 80
+
+// quote quotes s for a message, cut after maxQuoted bytes (at a rune
+// boundary) with its full length said.
+func quote(s string) string {
+	if len(s) <= maxQuoted {
+		return strconv.Quote(s)
+	}
+	cut := maxQuoted
+	for cut > 0 && !utf8.RuneStart(s[cut]) {
+		cut--
+	}
+	return strconv.Quote(s[:cut]) + "... (" + strconv.Itoa(len(s)) + " bytes)"
+}
 
 func errorf(input string, err error, msg string) *Error {
 	return &Error{Input: input, Err: err, Msg: msg}
@@ -90,25 +108,25 @@ func Parse(s string) (Quantity, error) {
 		if in == "" {
 			return Quantity{}, errorf(s, ErrSyntax, "empty value")
 		}
-		return Quantity{}, errorf(s, ErrNumber, "no number at the start of "+strconv.Quote(s)+"; write a value such as \"30 m\"")
+		return Quantity{}, errorf(s, ErrNumber, "no number at the start of "+quote(s)+"; write a value such as \"30 m\"")
 	}
 	v, err := strconv.ParseFloat(in[:n], 64)
 	if err != nil || math.IsInf(v, 0) {
-		return Quantity{}, errorf(s, ErrNumber, "number out of range in "+strconv.Quote(s))
+		return Quantity{}, errorf(s, ErrNumber, "number out of range in "+quote(s))
 	}
 	rest := strings.TrimSpace(in[n:])
 	if rest == "" {
 		return Quantity{Value: v, Unit: Unit{Symbol: "", Dim: Dimensionless, Factor: 1}}, nil
 	}
 	if strings.HasPrefix(rest, ",") && n < len(in) && len(rest) > 1 && isDigit(rest[1]) {
-		return Quantity{}, errorf(s, ErrNumber, "use \".\" as the decimal separator in "+strconv.Quote(s))
+		return Quantity{}, errorf(s, ErrNumber, "use \".\" as the decimal separator in "+quote(s))
 	}
 	u, err := parseUnit(rest, s)
 	if err != nil {
 		return Quantity{}, err
 	}
 	if math.IsInf(v*u.Factor, 0) {
-		return Quantity{}, errorf(s, ErrNumber, "number out of range in "+strconv.Quote(s))
+		return Quantity{}, errorf(s, ErrNumber, "number out of range in "+quote(s))
 	}
 	return Quantity{Value: v, Unit: u}, nil
 }
@@ -233,7 +251,7 @@ func parseUnitExpr(expr, src string) (Unit, error) {
 	}
 	p.space()
 	if p.i < len(p.s) {
-		return Unit{}, p.fail(ErrSyntax, "unexpected "+strconv.Quote(p.s[p.i:]))
+		return Unit{}, p.fail(ErrSyntax, "unexpected "+quote(p.s[p.i:]))
 	}
 	u := Unit{Symbol: expr, Dim: d, Factor: f}
 	if p.terms == 1 && d == Temp && p.last.dim == Temp {
@@ -245,7 +263,7 @@ func parseUnitExpr(expr, src string) (Unit, error) {
 }
 
 func (p *unitParser) fail(err error, what string) *Error {
-	return errorf(p.src, err, what+" in "+strconv.Quote(p.src))
+	return errorf(p.src, err, what+" in "+quote(p.src))
 }
 
 // maxExponent bounds each base exponent of a unit, so that no product of
@@ -356,16 +374,16 @@ func (p *unitParser) term() (float64, Dim, error) {
 				p.last = table["1"]
 				return 1, Dimensionless, nil
 			} else {
-				return 0, Dim{}, p.fail(ErrSyntax, "unexpected "+strconv.Quote(p.s[p.i:]))
+				return 0, Dim{}, p.fail(ErrSyntax, "unexpected "+quote(p.s[p.i:]))
 			}
 		}
 		u, ok := lookup(name)
 		if !ok {
-			msg := "unknown unit " + strconv.Quote(name)
+			msg := "unknown unit " + quote(name)
 			if h, ok := hints[name]; ok {
 				msg += " (" + h + ")"
 			}
-			return 0, Dim{}, errorf(p.src, ErrUnknownUnit, msg+" in "+strconv.Quote(p.src))
+			return 0, Dim{}, errorf(p.src, ErrUnknownUnit, msg+" in "+quote(p.src))
 		}
 		f, d = u.factor, u.dim
 		p.terms++
@@ -446,7 +464,7 @@ func (p *unitParser) exponent() (int8, error) {
 		p.i++
 	}
 	if p.i-ds > 1 {
-		return 0, p.fail(ErrSyntax, "exponent "+strconv.Quote(p.s[start:p.i])+" too large")
+		return 0, p.fail(ErrSyntax, "exponent "+quote(p.s[start:p.i])+" too large")
 	}
 	n := int8(p.s[ds] - '0')
 	if n == 0 {

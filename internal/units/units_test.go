@@ -367,7 +367,12 @@ func TestParseRejects(t *testing.T) {
 				t.Errorf("Parse(%q) error Input = %q, want %q", c.in, pe.Input, c.in)
 			}
 			msg := err.Error()
-			if strings.TrimSpace(c.in) != "" && !strings.Contains(msg, strconv.Quote(c.in)) {
+			// The input is quoted, its first 80 bytes where it is longer.
+			quoted := strconv.Quote(c.in)
+			if len(c.in) > 80 {
+				quoted = strings.TrimSuffix(strconv.Quote(c.in[:80]), `"`)
+			}
+			if strings.TrimSpace(c.in) != "" && !strings.Contains(msg, quoted) {
 				t.Errorf("Parse(%q) error %q does not quote the input", c.in, msg)
 			}
 			for _, s := range c.msg {
