@@ -245,10 +245,11 @@ func bodyFromQuery(op *openapi3.Operation) {
 		case p.Schema != nil && p.Schema.Value != nil && p.Schema.Value.Type.Is("number"):
 			s = &openapi3.SchemaRef{Value: &openapi3.Schema{OneOf: openapi3.SchemaRefs{{Value: openapi3.NewFloat64Schema()}, {Value: openapi3.NewStringSchema()}}, Description: p.Description}}
 		default:
+			// Quantity is a string or a {value, unit} object: with a
+			// string beside it, every string would match two branches.
 			s = &openapi3.SchemaRef{Value: &openapi3.Schema{
 				Description: p.Description,
 				OneOf: openapi3.SchemaRefs{
-					{Value: openapi3.NewStringSchema()},
 					{Value: openapi3.NewFloat64Schema()},
 					{Ref: "#/components/schemas/Quantity"},
 				},
