@@ -477,7 +477,7 @@ type ScheduleResults struct {
 // schedule godoc
 //
 //	@Summary		Setting table of a movement joint: the gap to set at each installation temperature
-//	@Description	Rows from t_install_from (default t_min) to t_install_to (default t_max) in steps of t_install_step (a temperature interval despite its t_ prefix, default 5 K; "9 degF" is 5 K), at most 401 rows. Each row is /v1/joints/gap at that installation temperature: gap_install = min_gap + alpha L (t_max - t_install), or the sealant's required width, or, with gap_install and t_install, the as-built reference gap shifted by alpha L (t_install - t) along the rows. In JSON the rows are objects of {value, unit}; format=csv is the table with units in the header; format=svg and format=png draw gap against installation temperature with t_min and t_max marked. Row units follow units= and <row field>_unit (e.g. gap_install_unit=in). Demo example: a 60 m steel footbridge deck between -25 degC and 50 degC, 20 mm left at the hottest.
+//	@Description	Rows from t_install_from (default t_min) to t_install_to (default t_max) in steps of t_install_step (a temperature interval despite its t_ prefix, default 5 K; "9 degF" is 5 K; delta_t_install_step is the same parameter under a name that follows the delta_t* rule), at most 401 rows. Each row is /v1/joints/gap at that installation temperature: gap_install = min_gap + alpha L (t_max - t_install), or the sealant's required width, or, with gap_install and t_install, the as-built reference gap shifted by alpha L (t_install - t) along the rows. In JSON the rows are objects of {value, unit}; format=csv is the table with units in the header; format=svg and format=png draw gap against installation temperature with t_min and t_max marked. Row units follow units= and <row field>_unit (e.g. gap_install_unit=in). Demo example: a 60 m steel footbridge deck between -25 degC and 50 degC, 20 mm left at the hottest.
 //	@Tags			joints
 //	@Produce		json,plain,text/csv,application/xml,image/svg+xml,image/png
 //	@Param			length					query		string	true	"expansion length served by the joint, e.g. 60 m"
@@ -488,6 +488,7 @@ type ScheduleResults struct {
 //	@Param			t_install_from			query		string	false	"first installation temperature (absolute), default t_min"
 //	@Param			t_install_to			query		string	false	"last installation temperature (absolute), default t_max"
 //	@Param			t_install_step			query		string	false	"step between rows (a temperature interval), default 5 K"
+//	@Param			delta_t_install_step	query		string	false	"the same step under a delta_t* name; give one of the two"
 //	@Param			min_gap					query		string	false	"smallest gap allowed at t_max, e.g. 20 mm"
 //	@Param			gap_install				query		string	false	"reference gap at t_install (with t_install)"
 //	@Param			t_install				query		string	false	"temperature of the reference gap_install"
@@ -510,10 +511,16 @@ func (h *Handler) schedule(p *params) (*Response, error) {
 	from, fromOK := p.temperature("t_install_from")
 	to, toOK := p.temperature("t_install_to")
 	step := units.TemperatureDifference(5)
-	if p.has("t_install_step") {
+	// The contract's name has the t_ prefix of absolute temperatures; the
+	// step is a difference, so the delta_t* name is accepted as well.
+	stepName := "t_install_step"
+	if p.has("delta_t_install_step") && p.exclusive("t_install_step", "delta_t_install_step") {
+		stepName = "delta_t_install_step"
+	}
+	if p.has(stepName) {
 		var sok bool
-		if step, sok = p.difference("t_install_step"); sok && !(step > 0) {
-			p.unprocessable("t_install_step", "must be greater than zero")
+		if step, sok = p.difference(stepName); sok && !(step > 0) {
+			p.unprocessable(stepName, "must be greater than zero")
 		}
 	}
 	rowUnits := p.readRowUnits()
@@ -547,7 +554,7 @@ func (h *Handler) schedule(p *params) (*Response, error) {
 	}
 	ts, err := calc.InstallTemperatures(from, to, step, MaxScheduleRows)
 	if err != nil {
-		p.unprocessable("t_install_step", "gives more than "+strconv.Itoa(MaxScheduleRows)+" rows from t_install_from to t_install_to: take a larger step or a narrower range")
+		p.unprocessable(stepName, "gives more than "+strconv.Itoa(MaxScheduleRows)+" rows from t_install_from to t_install_to: take a larger step or a narrower range")
 		return nil, p.failed()
 	}
 	res := &ScheduleResults{

@@ -667,3 +667,22 @@ func TestScheduleReference(t *testing.T) {
 		}
 	}
 }
+
+// The step of a setting table is a temperature difference: it may be
+// named by the delta_t* rule too. 9 degF is 5 K (NIST SP 811: 1 degF
+// interval = 5/9 K exactly), so 0..20 degC gives 5 rows.
+func TestScheduleStepAlias(t *testing.T) {
+	r := newTestHandler(t).Router()
+	const base = "/v1/joints/gap/schedule?length=60%20m&alpha=12e-6/K&t_min=-25%20degC&t_max=50%20degC&min_gap=20%20mm&t_install_from=0%20degC&t_install_to=20%20degC"
+	for _, step := range []string{"&t_install_step=9%20degF", "&delta_t_install_step=9%20degF"} {
+		w := do(t, r, http.MethodGet, base+step, "", "")
+		var body struct{ Results struct{ Rows []json.RawMessage } }
+		if err := json.Unmarshal(w.Body.Bytes(), &body); err != nil || w.Code != http.StatusOK || len(body.Results.Rows) != 5 {
+			t.Errorf("%s: status %d, %d rows, %v; want 200 with 5 rows", step, w.Code, len(body.Results.Rows), err)
+		}
+	}
+	w := do(t, r, http.MethodGet, base+"&t_install_step=5%20K&delta_t_install_step=5%20K", "", "")
+	if pr := decodeProblem(t, w); w.Code != http.StatusUnprocessableEntity || len(pr.Errors) != 1 || pr.Errors[0].Parameter != "delta_t_install_step" {
+		t.Errorf("both names: status %d, errors %+v; want one 422 on delta_t_install_step", w.Code, pr.Errors)
+	}
+}
