@@ -4,9 +4,13 @@
 // 2.0 cannot say: JSON request bodies for the POST twins of the GET
 // calculations (a quantity is a string or a {value, unit} object), the
 // application/problem+json content of every error response, plain
-// string bodies for the text, csv, svg and png formats, and the headers
-// the middleware sets (X-Request-Id, ETag, Cache-Control, the 304 of a
-// matching If-None-Match).
+// string bodies for the text, csv, svg and png formats, the headers the
+// middleware sets (X-Request-Id, ETag, Cache-Control, the 304 of a
+// matching If-None-Match), the refusals of the middleware and the router
+// (401, 405, 413, 414, 415, 503) with their headers, the optional API key
+// as the security of the protected operations, the output options
+// (result, on_error, <result>_unit) on every calculation, in its query
+// and its JSON body, and a batch's JSON forms, no-store and trailer.
 //
 // Run it through `go generate ./api`.
 package main
@@ -15,10 +19,12 @@ import (
 	"encoding/json"
 	"flag"
 	"fmt"
+	"net/http"
 	"os"
 	"path/filepath"
 	"runtime"
 	"sort"
+	"strconv"
 	"strings"
 
 	"github.com/getkin/kin-openapi/openapi2"
@@ -48,8 +54,31 @@ func repoRoot() string {
 	return filepath.Join(filepath.Dir(file), "..", "..")
 }
 
-// controlParams shape a response; on a POST they stay in the query.
+// controlParams shape a response; on a POST they stay in the query, and
+// all but api_key (which only the query carries) may be body members too.
 var controlParams = map[string]bool{"format": true, "units": true, "result": true, "on_error": true, "api_key": true}
+
+// openPaths are served without an API key even where the deployment sets
+// keys (openRoutes in internal/handlers/auth.go); every other operation
+// is protected. unshedPaths are served whatever the load (unshedRoutes in
+// the same file); every other operation may be shed with a 503. The
+// handlers' document test checks both lists against the handlers.
+var (
+	openPaths = map[string]bool{
+		"/healthz": true, "/readyz": true, "/metrics": true, "/openapi.yaml": true,
+		"/docs": true, "/docs/{any}": true, "/problems/{type}": true,
+	}
+	unshedPaths = map[string]bool{"/healthz": true, "/readyz": true, "/metrics": true}
+)
+
+// outputSource is the operation whose result and on_error parameters are
+// copied to the calculations that lack them.
+const outputSource = "/v1/expansion/linear"
+
+// unitsSentence is appended to the description of every units parameter:
+// a per-result unit has no fixed name, so it cannot be a parameter.
+const unitsSentence = "Any one result can be asked in a unit of its own with <result>_unit (e.g. delta_length_unit=in " +
+	"on /v1/expansion/linear): a unit of that result's dimension; a temperature takes degC, degF, K or degR."
 
 // Generate returns the OpenAPI 3.0 document as YAML.
 func Generate(root string) ([]byte, error) {
@@ -148,20 +177,31 @@ func complete(doc *openapi3.T) {
 			s.Value.AdditionalProperties = openapi3.AdditionalProperties{Has: boolPtr(false)}
 		}
 	}
+	security(doc)
+	refusalResponses(doc)
 	paths := doc.Paths.Map()
 	keys := make([]string, 0, len(paths))
 	for k := range paths {
 		keys = append(keys, k)
 	}
 	sort.Strings(keys)
+	outputs := outputParams(paths, keys)
 	for _, path := range keys {
 		item := paths[path]
 		for method, op := range item.Operations() {
+			if item.Get != nil && item.Post != nil { // a calculation; a batch is POST only
+				addOutputParams(op, outputs)
+			}
+			describeUnits(op)
 			if method == "POST" && item.Get != nil && len(op.Parameters) > 0 && op.RequestBody == nil {
 				bodyFromQuery(op)
 			}
+			refusals(path, method, op)
 			fixResponses(op)
 			describeHeaders(op, method == "GET" && strings.HasPrefix(path, "/v1/"))
+			if strings.HasPrefix(path, "/v1/batch/") {
+				completeBatch(op)
+			}
 		}
 	}
 }
@@ -182,7 +222,14 @@ func sharedHeaders(doc *openapi3.T) {
 		"ETag": header("On a 200 GET of /v1/: a strong tag of the answer, a hash of the method, the path, the query as sent " +
 			"(without api_key) and the service and materials versions. Send it back in If-None-Match."),
 		"Cache-Control": header("public, max-age=300 on a GET of /v1/ (private, max-age=300 when the deployment requires API " +
-			"keys); no-store on every error, and on an on_error=inline answer that reports one."),
+			"keys); no-store on every error and redirect, on an on_error=inline answer that reports one, and on every batch answer."),
+		"Allow": header("The methods the path takes, e.g. GET, POST."),
+		"WWW-Authenticate": {Value: &openapi3.Header{Parameter: openapi3.Parameter{
+			Description: `Bearer realm="thermal-movement": send the key as Authorization: Bearer <key>, or in the api_key query parameter.`,
+			Schema:      &openapi3.SchemaRef{Value: &openapi3.Schema{Type: &openapi3.Types{"string"}, Pattern: "^Bearer( |$)"}}}}},
+		"Retry-After": {Value: &openapi3.Header{Parameter: openapi3.Parameter{
+			Description: "Seconds to wait before sending the request again.",
+			Schema:      &openapi3.SchemaRef{Value: &openapi3.Schema{Type: &openapi3.Types{"integer"}, Min: float64Ptr(0)}}}}},
 	}
 	if doc.Components.Parameters == nil {
 		doc.Components.Parameters = openapi3.ParametersMap{}
@@ -196,10 +243,13 @@ func sharedHeaders(doc *openapi3.T) {
 }
 
 // describeHeaders adds the shared headers to an operation: X-Request-Id
-// on every answer, Cache-Control on errors, and for a cacheable GET the
-// ETag and Cache-Control of its 200, If-None-Match and the 304.
+// on every answer, Cache-Control on errors and redirects (and on the 200
+// of an operation with on_error, whose inline error is no-store), and for
+// a cacheable GET the ETag and Cache-Control of its 200, If-None-Match
+// and the 304.
 func describeHeaders(op *openapi3.Operation, cacheable bool) {
 	ref := func(name string) *openapi3.HeaderRef { return &openapi3.HeaderRef{Ref: "#/components/headers/" + name} }
+	inline := queryParam(op, "on_error") != nil
 	op.Parameters = append(op.Parameters, &openapi3.ParameterRef{Ref: "#/components/parameters/X-Request-Id"})
 	if cacheable {
 		op.Parameters = append(op.Parameters, &openapi3.ParameterRef{Ref: "#/components/parameters/If-None-Match"})
@@ -215,7 +265,9 @@ func describeHeaders(op *openapi3.Operation, cacheable bool) {
 			r.Headers = openapi3.Headers{}
 		}
 		r.Headers["X-Request-Id"] = ref("X-Request-Id")
-		if code[0] == '4' || code[0] == '5' || cacheable {
+		// cacheWriter marks every answer but a 200 or 304 no-store, and a
+		// 200 too when it is an on_error=inline error.
+		if (code != "200" && code != "304") || cacheable || (code == "200" && inline) {
 			r.Headers["Cache-Control"] = ref("Cache-Control")
 		}
 		if cacheable && (code == "200" || code == "304") {
@@ -234,6 +286,23 @@ func bodyFromQuery(op *openapi3.Operation) {
 		p := pr.Value
 		if p == nil || p.In != "query" || controlParams[p.Name] {
 			keep = append(keep, pr)
+			if p == nil || p.In != "query" || p.Name == "api_key" {
+				continue
+			}
+			// An output option may be sent in the body instead (not in both).
+			s := &openapi3.Schema{Type: &openapi3.Types{"string"}, Description: p.Description}
+			if p.Schema != nil && p.Schema.Value != nil {
+				s.Enum = p.Schema.Value.Enum
+			}
+			schema.Properties[p.Name] = &openapi3.SchemaRef{Value: s}
+			if p.Name == "units" {
+				// <result>_unit members: any other name with a string value.
+				schema.AdditionalProperties = openapi3.AdditionalProperties{Schema: &openapi3.SchemaRef{Value: &openapi3.Schema{
+					Type: &openapi3.Types{"string"},
+					Description: "<result>_unit, the unit of one result, e.g. \"delta_length_unit\": \"in\"; " +
+						"a member that names no parameter and no result is refused with 400",
+				}}}
+			}
 			continue
 		}
 		var s *openapi3.SchemaRef
@@ -262,9 +331,10 @@ func bodyFromQuery(op *openapi3.Operation) {
 	}
 	op.Parameters = keep
 	op.RequestBody = &openapi3.RequestBodyRef{Value: &openapi3.RequestBody{
-		Required:    true,
-		Description: "the same parameters as the GET, as one JSON object",
-		Content:     openapi3.Content{"application/json": &openapi3.MediaType{Schema: &openapi3.SchemaRef{Value: schema}}},
+		Required: true,
+		Description: "the same parameters as the GET, as one JSON object (application/json, UTF-8); the output options " +
+			"(units, format, result, on_error, <result>_unit) may be members too, or stay in the query, not both",
+		Content: openapi3.Content{"application/json": &openapi3.MediaType{Schema: &openapi3.SchemaRef{Value: schema}}},
 	}}
 }
 
@@ -303,4 +373,242 @@ func fixResponses(op *openapi3.Operation) {
 
 func boolPtr(b bool) *bool { return &b }
 
+func float64Ptr(f float64) *float64 { return &f }
+
 func uint64Ptr(n uint64) *uint64 { return &n }
+
+// security makes the optional API key explicit: the bearer scheme the
+// annotations name (Swagger 2.0 can only call it an apiKey header) as an
+// HTTP bearer scheme, the api_key query parameter as a scheme of its own,
+// and both, or neither, on every protected operation (see refusals).
+func security(doc *openapi3.T) {
+	if doc.Components.SecuritySchemes == nil {
+		doc.Components.SecuritySchemes = openapi3.SecuritySchemes{}
+	}
+	open := make([]string, 0, len(openPaths))
+	for p := range openPaths {
+		open = append(open, p)
+	}
+	sort.Strings(open)
+	doc.Components.SecuritySchemes["bearer"] = &openapi3.SecuritySchemeRef{Value: &openapi3.SecurityScheme{
+		Type: "http", Scheme: "bearer",
+		Description: "Optional. A deployment requires an API key only when it is started with --api-keys-file (env API_KEYS_FILE); " +
+			"by default no key is needed, hence the empty requirement {} beside this scheme and api_key on every protected " +
+			"operation. Send Authorization: Bearer <key>, or the key in the api_key query parameter (for spreadsheet cells " +
+			"that cannot send headers), not both. A missing, wrong or repeated key is a 401 problem with WWW-Authenticate: " +
+			"Bearer, the same for each. " + strings.Join(open, ", ") + " never need a key. The key is removed from the request " +
+			"before the logs, the metrics and the ETag see it.",
+	}}
+	doc.Components.SecuritySchemes["api_key"] = &openapi3.SecuritySchemeRef{Value: &openapi3.SecurityScheme{
+		Type: "apiKey", In: "query", Name: "api_key",
+		Description: "Optional, as bearer: the same key in the query string, for clients that cannot send headers. Only " +
+			"the query carries it: an api_key member of a JSON body is an unknown parameter (400).",
+	}}
+}
+
+// keyOptional is the security of a protected operation: a bearer key, an
+// api_key, or (where the deployment sets no keys) nothing.
+func keyOptional() *openapi3.SecurityRequirements {
+	return &openapi3.SecurityRequirements{
+		{"bearer": []string{}},
+		{"api_key": []string{}},
+		{},
+	}
+}
+
+// queryParam returns op's query parameter of that name, or nil.
+func queryParam(op *openapi3.Operation, name string) *openapi3.Parameter {
+	for _, pr := range op.Parameters {
+		if p := pr.Value; p != nil && p.In == "query" && p.Name == name {
+			return p
+		}
+	}
+	return nil
+}
+
+// outputNames are the output options that every calculation taking
+// format reads (readOutput in internal/handlers) but not every
+// annotation lists.
+var outputNames = []string{"result", "on_error"}
+
+// outputParams finds the declaration of each output option: in
+// outputSource when it declares it, else in the first operation (by path,
+// GET before POST) that does.
+func outputParams(paths map[string]*openapi3.PathItem, keys []string) map[string]*openapi3.Parameter {
+	found := map[string]*openapi3.Parameter{}
+	order := append([]string{outputSource}, keys...)
+	for _, path := range order {
+		item := paths[path]
+		if item == nil {
+			continue
+		}
+		for _, op := range []*openapi3.Operation{item.Get, item.Post} {
+			if op == nil {
+				continue
+			}
+			for _, name := range outputNames {
+				if p := queryParam(op, name); p != nil && found[name] == nil {
+					found[name] = p
+				}
+			}
+		}
+	}
+	return found
+}
+
+// addOutputParams gives a calculation that takes format the output
+// options it lacks, each after the one before it (format, result,
+// on_error). A batch is no calculation here: it refuses result and
+// on_error.
+func addOutputParams(op *openapi3.Operation, decl map[string]*openapi3.Parameter) {
+	if queryParam(op, "format") == nil {
+		return
+	}
+	prev := "format"
+	for _, name := range outputNames {
+		if queryParam(op, name) == nil && decl[name] != nil {
+			at := len(op.Parameters)
+			for i, pr := range op.Parameters {
+				if p := pr.Value; p != nil && p.In == "query" && p.Name == prev {
+					at = i + 1
+				}
+			}
+			cp := *decl[name]
+			op.Parameters = append(op.Parameters[:at], append(openapi3.Parameters{{Value: &cp}}, op.Parameters[at:]...)...)
+		}
+		prev = name
+	}
+}
+
+// describeUnits says in the units parameter what cannot be a parameter
+// of its own: <result>_unit.
+func describeUnits(op *openapi3.Operation) {
+	p := queryParam(op, "units")
+	if p == nil || strings.Contains(p.Description, unitsSentence) {
+		return
+	}
+	cp := *p
+	cp.Description = strings.TrimSpace(strings.TrimSuffix(strings.TrimSpace(cp.Description), ".") + ". " + unitsSentence)
+	for _, pr := range op.Parameters {
+		if pr.Value == p {
+			pr.Value = &cp
+		}
+	}
+}
+
+// refusal is an answer the middleware or the router gives any operation
+// it applies to, whatever the handler: a problem with its headers,
+// declared once in components/responses.
+type refusal struct {
+	code, name, desc string
+	headers          []string
+}
+
+var refusalList = []refusal{
+	{"401", "Unauthorized", "Unauthorized: this deployment requires an API key, and none, a wrong one, or more than one was sent.",
+		[]string{"WWW-Authenticate"}},
+	{"405", "MethodNotAllowed", "Method not allowed: the path exists, but not for this method (nor HEAD for a GET); " +
+		"the Allow header lists its methods.", []string{"Allow"}},
+	{"413", "TooLarge", "Request too large: a body over --max-body-bytes (default 64 KiB) for a calculation; for a batch, " +
+		"over --batch-max-bytes or --batch-max-rows.", nil},
+	{"414", "URITooLong", "Request URI too long: over --max-url-bytes (default 8 KiB); send long inputs as a POST JSON body.", nil},
+	{"415", "UnsupportedMediaType", "Unsupported content type: a calculation's body is application/json, a batch's text/csv " +
+		"or application/json; either in UTF-8.", nil},
+	{"503", "Overloaded", "Service busy: more requests in flight than --max-in-flight; retry after the Retry-After delay.",
+		[]string{"Retry-After"}},
+}
+
+// refusalResponses adds the refusals to components/responses, each with
+// the headers describeHeaders gives an error: X-Request-Id and
+// Cache-Control (no-store).
+func refusalResponses(doc *openapi3.T) {
+	if doc.Components.Responses == nil {
+		doc.Components.Responses = openapi3.ResponseBodies{}
+	}
+	for _, r := range refusalList {
+		hs := openapi3.Headers{}
+		for _, h := range append([]string{"X-Request-Id", "Cache-Control"}, r.headers...) {
+			hs[h] = &openapi3.HeaderRef{Ref: "#/components/headers/" + h}
+		}
+		resp := openapi3.NewResponse().WithDescription(r.desc).WithContent(openapi3.Content{
+			"application/problem+json": &openapi3.MediaType{Schema: &openapi3.SchemaRef{Ref: "#/components/schemas/handlers.Problem"}},
+		})
+		resp.Headers = hs
+		doc.Components.Responses[r.name] = &openapi3.ResponseRef{Value: resp}
+	}
+}
+
+// refusals declares on an operation the refusals that apply to it: 405
+// (another method; gin's HandleMethodNotAllowed, with Allow) and 414
+// (limitURL) on every one, 413 and 415 on a POST (the body's size and
+// type), 503 where shed may refuse it and 401 where auth protects it,
+// which also gets the optional key as its security. An answer the
+// annotations declare in words of their own is kept; one that says no
+// more than the status text gives way to the shared one.
+func refusals(path, method string, op *openapi3.Operation) {
+	applies := map[string]bool{
+		"401": !openPaths[path],
+		"405": true,
+		"413": method == "POST",
+		"414": true,
+		"415": method == "POST",
+		"503": !unshedPaths[path],
+	}
+	for _, r := range refusalList {
+		if !applies[r.code] {
+			continue
+		}
+		code, _ := strconv.Atoi(r.code)
+		if rr := op.Responses.Value(r.code); rr != nil && (rr.Value == nil || rr.Value.Description == nil ||
+			*rr.Value.Description != http.StatusText(code)) {
+			continue
+		}
+		op.Responses.Set(r.code, &openapi3.ResponseRef{Ref: "#/components/responses/" + r.name})
+	}
+	if applies["401"] {
+		op.Security = keyOptional()
+	}
+}
+
+// completeBatch gives a batch its JSON forms, which the annotations can
+// only call a string: an array of request objects in, an array of flat
+// row objects out; and it declares the headers of its 200: no-store, and
+// the trailer Batch-Status that says how the streamed answer ended.
+func completeBatch(op *openapi3.Operation) {
+	member := func(nullable bool, desc string) *openapi3.SchemaRef {
+		return &openapi3.SchemaRef{Value: &openapi3.Schema{Nullable: nullable, Description: desc, AnyOf: openapi3.SchemaRefs{
+			{Value: openapi3.NewStringSchema()}, {Value: openapi3.NewFloat64Schema()}, {Value: openapi3.NewBoolSchema()},
+			{Ref: "#/components/schemas/Quantity"},
+		}}}
+	}
+	array := func(desc string, elem *openapi3.SchemaRef) *openapi3.SchemaRef {
+		return &openapi3.SchemaRef{Value: &openapi3.Schema{Type: &openapi3.Types{"array"}, Description: desc, Items: &openapi3.SchemaRef{Value: &openapi3.Schema{
+			Type: &openapi3.Types{"object"}, AdditionalProperties: openapi3.AdditionalProperties{Schema: elem},
+		}}}}
+	}
+	if rb := op.RequestBody; rb != nil && rb.Value != nil {
+		if mt := rb.Value.Content.Get("application/json"); mt != nil {
+			mt.Schema = array("one request object a row, with the members of a single POST (an element that is not such an "+
+				"object is an error of its row)", member(false, "a parameter: a string, a number, a boolean or a quantity object"))
+		}
+	}
+	rr := op.Responses.Value("200")
+	if rr == nil || rr.Value == nil {
+		return
+	}
+	if mt := rr.Value.Content.Get("application/json"); mt != nil {
+		mt.Schema = array("one flat object a row: the inputs as sent, then each result named with its unit "+
+			"(\"delta_length [mm]\", null where not computed), then warnings and error",
+			member(true, "an input as sent, a result number (null where not computed), a check's pass or fail, warnings or error"))
+	}
+	if rr.Value.Headers == nil {
+		rr.Value.Headers = openapi3.Headers{}
+	}
+	rr.Value.Headers["Cache-Control"] = &openapi3.HeaderRef{Ref: "#/components/headers/Cache-Control"}
+	rr.Value.Headers["Trailer"] = &openapi3.HeaderRef{Value: &openapi3.Header{Parameter: openapi3.Parameter{
+		Description: "Batch-Status: the answer streams, and ends with the trailer Batch-Status, \"complete: N rows\", or " +
+			"\"stopped after row N: <reason>\" when a limit or an unreadable body stopped it after the status line was sent " +
+			"(the last row's error says the same). Read it to tell a whole answer from a cut one.",
+		Schema: &openapi3.SchemaRef{Value: &openapi3.Schema{Type: &openapi3.Types{"string"}, Enum: []any{"Batch-Status"}}},
+	}}}
+}
