@@ -16,8 +16,9 @@ import (
 )
 
 // raw is one request parameter before it is interpreted: a string (from
-// a query or a JSON string), a JSON number, a JSON boolean, or the JSON
-// object form of a quantity {"value": 30, "unit": "m"}.
+// a query or a JSON string), a JSON number, a JSON boolean, the JSON
+// object form of a quantity {"value": 30, "unit": "m"}, or a value that
+// could not be read at all.
 type raw struct {
 	kind   rawKind
 	str    string
@@ -34,6 +35,12 @@ const (
 	rawNumber
 	rawBool
 	rawObject
+	// rawInvalid holds the place of a parameter whose value could not be
+	// read (a JSON null, array or malformed quantity object), whose fault
+	// is already recorded: the calculation then
+	// neither asks for it as missing nor calls it unknown, and every
+	// reader refuses it, so nothing is computed from it.
+	rawInvalid
 )
 
 // readQuery reads the parameters of a raw query string, as sent: pairs
@@ -89,7 +96,9 @@ func dedupe(errs []FieldError) []FieldError {
 }
 
 // errBody is a request body that cannot be read as the JSON object of a
-// calculation.
+// calculation at all: not JSON, not an object, too large, or of another
+// content type. It names no parameter: a fault of one member's value is
+// a FieldError instead, and the other members are still read.
 type errBody struct {
 	kind errKind
 	msg  string
@@ -97,22 +106,34 @@ type errBody struct {
 
 func (e *errBody) Error() string { return e.msg }
 
+// errValue is a member of a body that is well formed JSON but not the
+// value of a parameter: null, an array, a malformed quantity object, a
+// number beyond float64. Its detail does not repeat the name.
+type errValue struct {
+	key, detail string
+}
+
+func (e *errValue) Error() string { return "parameter " + strconv.Quote(e.key) + ": " + e.detail }
+
 // readJSON reads the body of a POST: one JSON object whose members are
 // strings, numbers, booleans or quantity objects. The content type must
-// be application/json; the body is capped at limit bytes; duplicate keys,
-// unknown members of quantity objects, nesting and trailing data are
-// refused.
-func readJSON(r *http.Request, limit int64, into map[string]raw) error {
+// be application/json and the body is capped at limit bytes; a body that
+// is not one well formed JSON object (trailing data included) is an
+// *errBody. Otherwise every member is read into into, and the faults of
+// members are returned, one per member: a value that is not a parameter's
+// (held by a rawInvalid placeholder) and a name given more than once (the
+// first value is kept).
+func readJSON(r *http.Request, limit int64, into map[string]raw) ([]FieldError, error) {
 	if err := checkJSONType(r.Header.Get("Content-Type")); err != nil {
-		return err
+		return nil, err
 	}
 	body, err := io.ReadAll(http.MaxBytesReader(nil, r.Body, limit))
 	if err != nil {
 		var mbe *http.MaxBytesError
 		if errors.As(err, &mbe) {
-			return &errBody{errTooLarge, "request body over " + strconv.FormatInt(limit, 10) + " bytes"}
+			return nil, &errBody{errTooLarge, "request body over " + strconv.FormatInt(limit, 10) + " bytes"}
 		}
-		return &errBody{errInvalid, "request body cannot be read"}
+		return nil, &errBody{errInvalid, "request body cannot be read"}
 	}
 	return decodeObject(body, into)
 }
@@ -131,60 +152,80 @@ func checkJSONType(ct string) error {
 	return nil
 }
 
-// decodeObject decodes one JSON object into raw parameters.
-func decodeObject(body []byte, into map[string]raw) error {
+// utf8BOM is the byte order mark some editors put before UTF-8 text.
+const utf8BOM = "\xef\xbb\xbf"
+
+// decodeObject decodes one JSON object into raw parameters, as readJSON.
+func decodeObject(body []byte, into map[string]raw) ([]FieldError, error) {
 	if !utf8.Valid(body) {
-		return &errBody{errInvalid, "request body is not valid UTF-8"}
+		return nil, &errBody{errInvalid, "request body is not valid UTF-8"}
 	}
 	if len(bytes.TrimSpace(body)) == 0 {
-		return &errBody{errInvalid, "request body is empty; send a JSON object such as {\"length\": \"30 m\"}"}
+		return nil, &errBody{errInvalid, "request body is empty; send a JSON object such as {\"length\": \"30 m\"}"}
+	}
+	if bytes.HasPrefix(body, []byte(utf8BOM)) {
+		return nil, &errBody{errInvalid, "malformed JSON: the body starts with a byte order mark; send the JSON object without one"}
 	}
 	dec := json.NewDecoder(bytes.NewReader(body))
 	dec.UseNumber()
-	if err := decodeMembers(dec, into); err != nil {
-		return err
+	errs, err := decodeMembers(dec, into)
+	if err != nil {
+		return nil, err
 	}
 	if _, err := dec.Token(); err != io.EOF {
-		return &errBody{errInvalid, "malformed JSON: data after the object"}
+		return nil, &errBody{errInvalid, "malformed JSON: data after the object"}
 	}
-	return nil
+	return errs, nil
 }
 
-func decodeMembers(dec *json.Decoder, into map[string]raw) error {
-	bad := func(msg string) error { return &errBody{errInvalid, "malformed JSON: " + msg} }
+// decodeMembers reads the object of parameters, member by member. A
+// member whose value is not a parameter's is a fault of that member, and
+// reading goes on with the next; malformed JSON ends the reading.
+func decodeMembers(dec *json.Decoder, into map[string]raw) ([]FieldError, error) {
 	t, err := dec.Token()
 	if err != nil {
-		return bad(jsonMessage(err))
+		return nil, malformed(err, "")
 	}
 	if d, ok := t.(json.Delim); !ok || d != '{' {
-		return &errBody{errInvalid, "the body must be a JSON object of parameters"}
+		return nil, &errBody{errInvalid, "the body must be a JSON object of parameters, such as {\"length\": \"30 m\"}, not " + jsonKind(t)}
 	}
+	var errs []FieldError
 	for dec.More() {
 		kt, err := dec.Token()
 		if err != nil {
-			return bad(jsonMessage(err))
+			return nil, malformed(err, "")
 		}
-		key := kt.(string)
-		if _, dup := into[key]; dup {
-			return &errBody{errInvalid, "parameter " + strconv.Quote(key) + " given more than once"}
-		}
+		key := kt.(string) // the decoder allows only a string here
 		v, err := decodeValue(dec, key)
 		if err != nil {
-			return err
+			var ev *errValue
+			if !errors.As(err, &ev) {
+				return nil, err
+			}
+			errs = append(errs, FieldError{Parameter: key, Detail: ev.detail})
+			v = raw{kind: rawInvalid}
+		}
+		if _, dup := into[key]; dup {
+			errs = append(errs, FieldError{Parameter: key, Detail: "given more than once"})
+			continue
 		}
 		into[key] = v
 	}
 	if _, err := dec.Token(); err != nil {
-		return bad(jsonMessage(err))
+		return nil, malformed(err, "")
 	}
-	return nil
+	return dedupe(errs), nil
 }
 
+// decodeValue reads the value of the member key. A value that is well
+// formed but not a parameter's is read to its end and refused with an
+// *errValue, so that the caller can go on with the next member; malformed
+// JSON is an *errBody.
 func decodeValue(dec *json.Decoder, key string) (raw, error) {
-	bad := func(msg string) error { return &errBody{errInvalid, "parameter " + strconv.Quote(key) + ": " + msg} }
+	bad := func(detail string) error { return &errValue{key, detail} }
 	t, err := dec.Token()
 	if err != nil {
-		return raw{}, &errBody{errInvalid, "malformed JSON: " + jsonMessage(err)}
+		return raw{}, malformed(err, key)
 	}
 	switch v := t.(type) {
 	case string:
@@ -200,60 +241,130 @@ func decodeValue(dec *json.Decoder, key string) (raw, error) {
 	case nil:
 		return raw{}, bad("null is not a value; leave the parameter out")
 	case json.Delim:
-		if v != '{' {
-			return raw{}, bad("an array is not a value; give a string such as \"30 m\" or an object {\"value\": 30, \"unit\": \"m\"}")
+		if v == '{' {
+			return decodeQuantityObject(dec, key)
 		}
-		return decodeQuantityObject(dec, key)
+		if err := skip(dec, 1, key); err != nil {
+			return raw{}, err
+		}
+		return raw{}, bad("an array is not a value; give a string such as \"30 m\" or an object {\"value\": 30, \"unit\": \"m\"}")
 	}
 	return raw{}, bad("unexpected JSON")
 }
 
 // decodeQuantityObject reads the rest of {"value": <number>, "unit": <string>}.
+// The first fault found decides the message; the rest of the object is
+// read through.
 func decodeQuantityObject(dec *json.Decoder, key string) (raw, error) {
-	bad := func(msg string) error {
-		return &errBody{errInvalid, "parameter " + strconv.Quote(key) + ": " + msg + "; write {\"value\": 30, \"unit\": \"m\"}"}
+	bad := func(detail string) error {
+		return &errValue{key, detail + "; write {\"value\": 30, \"unit\": \"m\"}"}
 	}
 	r := raw{kind: rawObject}
 	var haveValue, haveUnit bool
+	fault := ""
 	for dec.More() {
 		kt, err := dec.Token()
 		if err != nil {
-			return raw{}, &errBody{errInvalid, "malformed JSON: " + jsonMessage(err)}
+			return raw{}, malformed(err, key)
 		}
 		t, err := dec.Token()
 		if err != nil {
-			return raw{}, &errBody{errInvalid, "malformed JSON: " + jsonMessage(err)}
+			return raw{}, malformed(err, key)
+		}
+		if d, ok := t.(json.Delim); ok {
+			// A nested object or array: never a quantity's member.
+			if err := skip(dec, 1, key); err != nil {
+				return raw{}, err
+			}
+			t = d
+		}
+		if fault != "" {
+			continue
 		}
 		switch kt.(string) {
 		case "value":
 			n, ok := t.(json.Number)
 			if !ok || haveValue {
-				return raw{}, bad("\"value\" must be one number")
+				fault = "\"value\" must be one number"
+				continue
 			}
 			f, err := strconv.ParseFloat(string(n), 64)
 			if err != nil || math.IsInf(f, 0) {
-				return raw{}, bad("number " + string(n) + " out of range")
+				fault = "number " + string(n) + " out of range"
+				continue
 			}
 			r.num, haveValue = f, true
 			r.origin = string(n) + r.origin
 		case "unit":
 			s, ok := t.(string)
 			if !ok || haveUnit {
-				return raw{}, bad("\"unit\" must be one string")
+				fault = "\"unit\" must be one string"
+				continue
 			}
 			r.unit, haveUnit = s, true
 			r.origin += " " + s
 		default:
-			return raw{}, bad("unknown member " + strconv.Quote(kt.(string)))
+			fault = "unknown member " + strconv.Quote(kt.(string))
 		}
 	}
 	if _, err := dec.Token(); err != nil {
-		return raw{}, &errBody{errInvalid, "malformed JSON: " + jsonMessage(err)}
+		return raw{}, malformed(err, key)
 	}
-	if !haveValue || !haveUnit {
+	switch {
+	case fault != "":
+		return raw{}, bad(fault)
+	case !haveValue || !haveUnit:
 		return raw{}, bad("a quantity object needs both \"value\" and \"unit\"")
 	}
 	return r, nil
+}
+
+// skip reads through the rest of a value whose depth opening delimiters
+// have been read.
+func skip(dec *json.Decoder, depth int, key string) error {
+	for depth > 0 {
+		t, err := dec.Token()
+		if err != nil {
+			return malformed(err, key)
+		}
+		switch t {
+		case json.Delim('{'), json.Delim('['):
+			depth++
+		case json.Delim('}'), json.Delim(']'):
+			depth--
+		}
+	}
+	return nil
+}
+
+// malformed is the whole-body error of malformed JSON met in the value of
+// the member key ("" outside any value).
+func malformed(err error, key string) error {
+	msg := "malformed JSON: " + jsonMessage(err)
+	if key != "" {
+		msg += ", in the value of " + strconv.Quote(key)
+	}
+	return &errBody{errInvalid, msg}
+}
+
+// jsonKind names the kind of JSON value that begins with token t.
+func jsonKind(t json.Token) string {
+	switch v := t.(type) {
+	case json.Delim:
+		if v == '[' {
+			return "an array"
+		}
+		return "an object"
+	case string:
+		return "a string"
+	case json.Number:
+		return "a number"
+	case bool:
+		return "a boolean"
+	case nil:
+		return "null"
+	}
+	return "that"
 }
 
 func jsonMessage(err error) string {

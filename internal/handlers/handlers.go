@@ -6,8 +6,11 @@ package handlers
 
 import (
 	"encoding/json"
+	"errors"
 	"net/http"
 	"reflect"
+	"slices"
+	"sort"
 	"sync"
 	"sync/atomic"
 
@@ -175,34 +178,41 @@ func (x *exchange) release() {
 // calculation is the wrapper around every calculation: it reads the
 // parameters, calls the calculation, converts results to their output
 // units and writes the response in the format asked for.
+//
+// Faults met in the members of a JSON body do not end the request there:
+// they are recorded in the parameters first, so that the calculation's
+// own reading names the other bad fields too and, with a fault recorded,
+// computes nothing; the one problem then names them all. A body that is
+// not a JSON object at all is refused at once.
 func (h *Handler) calculation(spec calcSpec) gin.HandlerFunc {
 	fields := fieldsOf(reflect.TypeOf(spec.results))
 	return func(c *gin.Context) {
 		x := exchanges.Get().(*exchange)
 		defer x.release()
-		vals := x.vals
+		vals, p, out := x.vals, &x.p, &x.out
 		if errs := readQuery(c.Request.URL.RawQuery, vals); len(errs) > 0 {
 			h.problem(c, nil, newError(errInvalid, "invalid query string", errs...))
 			return
 		}
+		var faults []FieldError
 		if c.Request.Method == http.MethodPost {
-			if err := readJSON(c.Request, h.opts.MaxBodyBytes, x.body); err != nil {
+			bodyFaults, err := readJSON(c.Request, h.opts.MaxBodyBytes, x.body)
+			if err != nil {
 				eb := err.(*errBody)
 				h.problem(c, nil, newError(eb.kind, eb.msg))
 				return
 			}
-			for k, v := range x.body {
-				if _, dup := vals[k]; dup {
-					h.problem(c, nil, newError(errInvalid, "parameter "+k+" given in both the query and the body", FieldError{Parameter: k, Detail: "given in both the query and the body"}))
-					return
-				}
-				vals[k] = v
-			}
+			faults = mergeBody(vals, x.body, bodyFaults)
 		}
-		p, out := &x.p, &x.out
 		p.reset(vals, h.cat)
+		for _, f := range faults {
+			p.invalid(f.Parameter, f.Detail)
+		}
 		readOutput(out, p, fields, spec.formats...)
 		resp, err := spec.fn(p)
+		if len(faults) > 0 {
+			err = withFaults(err, faults, vals)
+		}
 		if err != nil {
 			h.metrics.calcError(spec.name, err)
 			h.problem(c, out, err)
@@ -219,6 +229,53 @@ func (h *Handler) calculation(spec calcSpec) gin.HandlerFunc {
 		h.complete(resp, spec.name, p)
 		x.buf = h.write(c, out, resp, items, x.buf[:0])
 	}
+}
+
+// mergeBody adds the members of a JSON body to the query's parameters
+// in vals, and returns faults with one more for each parameter given in
+// both (the query's value is kept).
+func mergeBody(vals, body map[string]raw, faults []FieldError) []FieldError {
+	var both []string
+	for k, v := range body {
+		if _, dup := vals[k]; dup {
+			both = append(both, k)
+			continue
+		}
+		vals[k] = v
+	}
+	sort.Strings(both)
+	for _, k := range both {
+		faults = append(faults, FieldError{Parameter: k, Detail: "given in both the query and the body"})
+	}
+	return faults
+}
+
+// withFaults joins the faults met before the calculation read its
+// parameters to err, the calculation's answer, into one error; it is
+// never nil, so that a request with a fault is never answered 200. The
+// faults are unreadable input, which decides the status. The
+// calculation's own complaint about a parameter whose value could not be
+// read at all (a rawInvalid placeholder) is left out: the fault already
+// says what is wrong with it.
+func withFaults(err error, faults []FieldError, vals map[string]raw) error {
+	var ae *apiError
+	if err != nil && !errors.As(err, &ae) {
+		return err // a defect stays one, to be logged
+	}
+	all := faults
+	extra := ""
+	if ae != nil {
+		all = slices.Clip(faults)
+		for _, f := range ae.fields {
+			if !slices.Contains(faults, f) && vals[f.Parameter].kind != rawInvalid {
+				all = append(all, f)
+			}
+		}
+		if len(ae.fields) == 0 {
+			extra = "; " + ae.detail
+		}
+	}
+	return newError(errInvalid, joinFields(all)+extra, all...)
 }
 
 // complete fills the parts of a response every calculation shares.

@@ -89,13 +89,18 @@ func fieldsError(groups map[errKind][]FieldError) error {
 		for _, k2 := range []errKind{errInvalid, errNotFound, errUnprocessable} {
 			all = append(all, groups[k2]...)
 		}
-		parts := make([]string, len(all))
-		for i, f := range all {
-			parts[i] = "invalid parameter \"" + f.Parameter + "\": " + f.Detail
-		}
-		return &apiError{kind: k, detail: strings.Join(parts, "; "), fields: all}
+		return &apiError{kind: k, detail: joinFields(all), fields: all}
 	}
 	return nil
+}
+
+// joinFields is the detail of a problem that names the bad fields fs.
+func joinFields(fs []FieldError) string {
+	parts := make([]string, len(fs))
+	for i, f := range fs {
+		parts[i] = "invalid parameter \"" + f.Parameter + "\": " + f.Detail
+	}
+	return strings.Join(parts, "; ")
 }
 
 // problemOf converts any error into the problem to send.

@@ -1,0 +1,170 @@
+package handlers
+
+import (
+	"net/http"
+	"strings"
+	"testing"
+
+	"github.com/gin-gonic/gin"
+)
+
+// The tests of this file check the shape of refusals, not physics: the
+// quantities sent are demo inputs (a 48 m steel member warmed by 50 K)
+// and no computed value is checked.
+
+// want is one entry a problem's errors must hold: the parameter, and a
+// part of its detail.
+type want struct{ param, detail string }
+
+// checkErrors checks that the problem p lists exactly the entries ws, in
+// order, and that its detail names each of them.
+func checkErrors(t *testing.T, p Problem, ws ...want) {
+	t.Helper()
+	ok := len(p.Errors) == len(ws)
+	for i := 0; ok && i < len(ws); i++ {
+		ok = p.Errors[i].Parameter == ws[i].param && strings.Contains(p.Errors[i].Detail, ws[i].detail)
+	}
+	if !ok {
+		t.Errorf("errors = %+v, want %+v", p.Errors, ws)
+	}
+	for _, w := range ws {
+		if !strings.Contains(p.Detail, `"`+w.param+`"`) {
+			t.Errorf("detail %q does not name %q", p.Detail, w.param)
+		}
+	}
+}
+
+// TestErrorsBodyMembers posts bodies whose members are well formed JSON
+// but not parameter values: each bad member is one entry of errors, the
+// other members are still read (so the calculation names its own faults
+// too), and a member that could not be read is neither "required" nor
+// "unknown".
+func TestErrorsBodyMembers(t *testing.T) {
+	r := newTestHandler(t).Router()
+	const rest = `"alpha": "12e-6/K", "delta_t": "50 K"`
+	tests := []struct {
+		name, body string
+		want       []want
+	}{
+		{"object without unit", `{"length": {"value": 48}, ` + rest + `}`, []want{{"length", `needs both "value" and "unit"`}}},
+		{"value a string", `{"length": {"value": "48", "unit": "m"}, ` + rest + `}`, []want{{"length", `"value" must be one number`}}},
+		{"unit a number", `{"length": {"value": 1, "unit": 5}, ` + rest + `}`, []want{{"length", `"unit" must be one string`}}},
+		{"null", `{"length": null, ` + rest + `}`, []want{{"length", "null is not a value"}}},
+		{"array", `{"length": ["48 m"], ` + rest + `}`, []want{{"length", "an array is not a value"}}},
+		{"extra member", `{"length": {"value": 48, "unit": "m", "extra": {"a": [1]}}, ` + rest + `}`, []want{{"length", `unknown member "extra"`}}},
+		{"member twice in a quantity", `{"length": {"value": 48, "unit": "m", "value": 49}, ` + rest + `}`, []want{{"length", `"value" must be one number`}}},
+		{"duplicate key", `{"length": "48 m", "length": "49 m", ` + rest + `}`, []want{{"length", "given more than once"}}},
+		{"number out of range", `{"length": 1e400, ` + rest + `}`, []want{{"length", "out of range"}}},
+		{"every bad member at once",
+			`{"length": null, "alpha": [1, {"a": [2]}], "delta_t": {"value": 50, "unit": "K", "unit": "K"}, "colour": "red"}`,
+			[]want{{"length", "null"}, {"alpha", "an array"}, {"delta_t", `"unit" must be one string`}, {"colour", "unknown parameter"}}},
+		{"bad member, then the calculation's own faults",
+			`{"length": {"unit": "m"}, "alpha": "12e-6/m", "delta_t": "x", "format": "xlsx"}`,
+			// The output options are read first, then the calculation's inputs in its order.
+			[]want{{"length", "needs both"}, {"format", `"xlsx"`}, {"delta_t", `"x"`}, {"alpha", "expected a coefficient of expansion"}}},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			w := do(t, r, http.MethodPost, "/v1/expansion/linear", "application/json", tt.body)
+			p := decodeProblem(t, w)
+			if w.Code != http.StatusBadRequest || p.Status != http.StatusBadRequest {
+				t.Errorf("status %d, want 400: %s", w.Code, w.Body)
+			}
+			checkErrors(t, p, tt.want...)
+		})
+	}
+}
+
+// TestErrorsBodyWhole posts bodies that are not a JSON object of
+// parameters at all: each is one problem with the status of its kind, a
+// detail saying what is wrong, and no errors.
+func TestErrorsBodyWhole(t *testing.T) {
+	h := newTestHandler(t)
+	h.opts.MaxBodyBytes = 1 << 10
+	r := h.Router()
+	tests := []struct {
+		name, query, ctype, body string
+		status                   int
+		detail                   string
+		want                     []want
+	}{
+		{"truncated", "", "application/json", `{"length": "3 m",`, 400, "malformed JSON: unexpected end of input", nil},
+		{"malformed value", "", "application/json", `{"length": 048}`, 400, `malformed JSON: invalid character '4' after object key:value pair at byte 12`, nil},
+		{"malformed in a quantity", "", "application/json", `{"length": {"value": 4,}}`, 400, `, in the value of "length"`, nil},
+		{"trailing data", "", "application/json", `{} {}`, 400, "data after the object", nil},
+		{"an array", "", "application/json", `[{"length": "48 m"}]`, 400, "must be a JSON object of parameters, such as {\"length\": \"30 m\"}, not an array", nil},
+		{"a string", "", "application/json", `"length=48 m"`, 400, "not a string", nil},
+		{"null", "", "application/json", `null`, 400, "not null", nil},
+		{"byte order mark", "", "application/json", "\xef\xbb\xbf{}", 400, "byte order mark", nil},
+		{"too large", "", "application/json", `{"length": "` + strings.Repeat("4", 2<<10) + ` m"}`, 413, "over 1024 bytes", nil},
+		{"content type", "", "text/plain", `{}`, 415, "Content-Type must be application/json", nil},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			w := do(t, r, http.MethodPost, "/v1/expansion/linear"+tt.query, tt.ctype, tt.body)
+			p := decodeProblem(t, w)
+			if w.Code != tt.status || !strings.Contains(p.Detail, tt.detail) {
+				t.Errorf("%d %q, want %d with %q", w.Code, p.Detail, tt.status, tt.detail)
+			}
+			if len(tt.want) > 0 || len(p.Errors) > 0 {
+				checkErrors(t, p, tt.want...)
+			}
+		})
+	}
+}
+
+// TestErrorsNothingComputed serves calculations that would compute from
+// the parameters they read, behind a body fault: one that asks
+// the parameters for their faults first computes nothing, and even one
+// that does not ask is never answered 200.
+func TestErrorsNothingComputed(t *testing.T) {
+	h := newTestHandler(t)
+	computed := false
+	// The results are placeholders of the right types; their values are
+	// not checked.
+	result := func() *Response {
+		computed = true
+		return &Response{Results: &LinearResults{DeltaLength: si(1), FinalLength: si(1), Strain: si(0), AlphaMean: si(0)}}
+	}
+	careful := calcSpec{name: "careful", results: (*LinearResults)(nil), fn: func(p *params) (*Response, error) {
+		p.quantity("length")
+		if err := p.done(); err != nil {
+			return nil, err
+		}
+		return result(), nil
+	}}
+	careless := calcSpec{name: "careless", results: (*LinearResults)(nil), fn: func(p *params) (*Response, error) {
+		p.quantity("length")
+		return result(), nil
+	}}
+	gin.SetMode(gin.ReleaseMode)
+	r := gin.New()
+	r.Any("/careful", h.calculation(careful))
+	r.Any("/careless", h.calculation(careless))
+	for _, tt := range []struct{ name, method, target, body string }{
+		{"bad member", "POST", "", `{"length": "1 m", "note": null}`},
+		{"duplicate member", "POST", "", `{"length": "1 m", "length": "1 m"}`},
+	} {
+		for _, path := range []string{"/careful", "/careless"} {
+			t.Run(tt.name+path, func(t *testing.T) {
+				computed = false
+				ct := ""
+				if tt.method == "POST" {
+					ct = "application/json"
+				}
+				w := do(t, r, tt.method, path+tt.target, ct, tt.body)
+				if w.Code != http.StatusBadRequest {
+					t.Errorf("status %d, want 400: %s", w.Code, w.Body)
+				}
+				if path == "/careful" && computed {
+					t.Error("computed despite a fault")
+				}
+			})
+		}
+	}
+	// The same calculation without a fault computes: the check above can fail.
+	computed = false
+	if w := do(t, r, "GET", "/careful?length=1%20m", "", ""); w.Code != http.StatusOK || !computed {
+		t.Errorf("valid request: %d computed=%v %s", w.Code, computed, w.Body)
+	}
+}
