@@ -36,8 +36,8 @@ const (
 	rawBool
 	rawObject
 	// rawInvalid holds the place of a parameter whose value could not be
-	// read (a JSON null, array or malformed quantity object), whose fault
-	// is already recorded: the calculation then
+	// read (bad percent-encoding, a JSON null, array or malformed quantity
+	// object), whose fault is already recorded: the calculation then
 	// neither asks for it as missing nor calls it unknown, and every
 	// reader refuses it, so nothing is computed from it.
 	rawInvalid
@@ -46,7 +46,9 @@ const (
 // readQuery reads the parameters of a raw query string, as sent: pairs
 // separated by "&", each name=value percent-encoded with "+" for a space.
 // A parameter given twice, bad percent-encoding and invalid UTF-8 are
-// errors naming the parameter. Empty pairs ("a=1&&b=2") are skipped.
+// errors naming the parameter; every other pair is still read. A name
+// given twice keeps its first value; a value that cannot be decoded is
+// held by a rawInvalid placeholder. Empty pairs ("a=1&&b=2") are skipped.
 func readQuery(query string, into map[string]raw) []FieldError {
 	var errs []FieldError
 	for query != "" {
@@ -65,20 +67,23 @@ func readQuery(query string, into map[string]raw) []FieldError {
 			errs = append(errs, FieldError{Parameter: strconv.QuoteToASCII(k), Detail: "parameter name is not valid UTF-8"})
 			continue
 		}
+		r := raw{kind: rawString}
 		v, err := url.QueryUnescape(ev)
 		switch {
 		case err != nil:
 			errs = append(errs, FieldError{Parameter: k, Detail: "value is not valid percent-encoding"})
-			continue
+			r.kind = rawInvalid
 		case !utf8.ValidString(v):
 			errs = append(errs, FieldError{Parameter: k, Detail: "value is not valid UTF-8"})
-			continue
+			r.kind = rawInvalid
+		default:
+			r.str, r.origin = v, v
 		}
 		if _, dup := into[k]; dup {
 			errs = append(errs, FieldError{Parameter: k, Detail: "given more than once"})
 			continue
 		}
-		into[k] = raw{kind: rawString, str: v, origin: v}
+		into[k] = r
 	}
 	return dedupe(errs)
 }

@@ -38,6 +38,8 @@ func texts(vals map[string]raw) map[string]string {
 // space, then percent-decode), which net/url also follows, and that every
 // fault names its parameter. Unlike that parser, which keeps bad escapes
 // as they are, a bad escape here is refused: a value must not be guessed.
+// A value that cannot be decoded keeps its name's place, so that it is
+// not also reported missing; a name given twice keeps its first value.
 func TestReadQuery(t *testing.T) {
 	cases := []struct {
 		query string
@@ -50,9 +52,10 @@ func TestReadQuery(t *testing.T) {
 		{"t=a%3Db", map[string]string{"t": "a=b"}, nil},
 		{"%61pi=1", map[string]string{"api": "1"}, nil},
 		{"a=1&a=2&a=3", map[string]string{"a": "1"}, []FieldError{{Parameter: "a", Detail: "given more than once"}}},
-		{"length=48%2", map[string]string{}, []FieldError{{Parameter: "length", Detail: "value is not valid percent-encoding"}}},
+		{"length=48%2&b=2", map[string]string{"length": placeholder, "b": "2"}, []FieldError{{Parameter: "length", Detail: "value is not valid percent-encoding"}}},
+		{"a=%zz&a=1", map[string]string{"a": placeholder}, []FieldError{{Parameter: "a", Detail: "value is not valid percent-encoding"}, {Parameter: "a", Detail: "given more than once"}}},
 		{"len%zzgth=1&b=2", map[string]string{"b": "2"}, []FieldError{{Parameter: `"len%zzgth"`, Detail: "parameter name is not valid percent-encoding"}}},
-		{"b=%ff", map[string]string{}, []FieldError{{Parameter: "b", Detail: "value is not valid UTF-8"}}},
+		{"b=%ff", map[string]string{"b": placeholder}, []FieldError{{Parameter: "b", Detail: "value is not valid UTF-8"}}},
 		{"%ff=1", map[string]string{}, []FieldError{{Parameter: `"\xff"`, Detail: "parameter name is not valid UTF-8"}}},
 	}
 	for _, tc := range cases {

@@ -77,7 +77,8 @@ func TestErrorsBodyMembers(t *testing.T) {
 
 // TestErrorsBodyWhole posts bodies that are not a JSON object of
 // parameters at all: each is one problem with the status of its kind, a
-// detail saying what is wrong, and no errors.
+// detail saying what is wrong, and no errors of its own; faults of the
+// query are still listed.
 func TestErrorsBodyWhole(t *testing.T) {
 	h := newTestHandler(t)
 	h.opts.MaxBodyBytes = 1 << 10
@@ -98,6 +99,8 @@ func TestErrorsBodyWhole(t *testing.T) {
 		{"byte order mark", "", "application/json", "\xef\xbb\xbf{}", 400, "byte order mark", nil},
 		{"too large", "", "application/json", `{"length": "` + strings.Repeat("4", 2<<10) + ` m"}`, 413, "over 1024 bytes", nil},
 		{"content type", "", "text/plain", `{}`, 415, "Content-Type must be application/json", nil},
+		{"with a query fault", "?length=1%20m&length=2%20m", "application/json", `{"alpha": `, 400, `malformed JSON: unexpected end of input, in the value of "alpha"; invalid parameter "length": given more than once`,
+			[]want{{"length", "given more than once"}}},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
@@ -113,8 +116,50 @@ func TestErrorsBodyWhole(t *testing.T) {
 	}
 }
 
+// TestErrorsQuery sends queries with a parameter given twice or not
+// decodable: the fault is one entry, and the calculation's own reading
+// (of the first value) still names the other bad parameters, in the same
+// 400; a value that could not be decoded is not also "required".
+func TestErrorsQuery(t *testing.T) {
+	r := newTestHandler(t).Router()
+	tests := []struct {
+		name, method, target, body string
+		status                     int
+		want                       []want
+	}{
+		{"duplicate hides nothing", "GET", "/v1/expansion/linear?length=30%20m&alpha=1e-5/K&delta_t=x&length=40%20m&colour=1", "", 400,
+			[]want{{"length", "given more than once"}, {"delta_t", `"x"`}, {"colour", "unknown parameter"}}},
+		{"duplicate alone", "GET", "/v1/expansion/linear?length=30%20m&alpha=1e-5/K&delta_t=50%20K&length=30%20m", "", 400,
+			[]want{{"length", "given more than once"}}},
+		{"first value read", "GET", "/v1/expansion/linear?length=30%20mtr&alpha=1e-5/K&delta_t=50%20K&length=30%20m", "", 400,
+			[]want{{"length", "given more than once"}, {"length", `"30 mtr"`}}},
+		{"duplicate before a 404", "GET", "/v1/expansion/linear?length=30%20m&material=unobtainium&delta_t=50%20K&delta_t=50%20K", "", 400,
+			[]want{{"delta_t", "given more than once"}, {"material", "unknown material"}}},
+		{"bad percent-encoding", "GET", "/v1/expansion/linear?length=30%2&alpha=1e-5/K&delta_t=x", "", 400,
+			[]want{{"length", "not valid percent-encoding"}, {"delta_t", `"x"`}}},
+		{"bad name encoding", "GET", "/v1/expansion/linear?length=30%20m&alpha=1e-5/K&delta_t=50%20K&x%zz=1", "", 400,
+			[]want{{`"x%zz"`, "not valid percent-encoding"}}},
+		{"query and body", "POST", "/v1/expansion/linear?length=1%20m", `{"length": "2 m", "alpha": null, "delta_t": "50 K"}`, 400,
+			[]want{{"alpha", "null"}, {"length", "given in both the query and the body"}}},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			ct := ""
+			if tt.body != "" {
+				ct = "application/json"
+			}
+			w := do(t, r, tt.method, tt.target, ct, tt.body)
+			p := decodeProblem(t, w)
+			if w.Code != tt.status {
+				t.Errorf("status %d, want %d: %s", w.Code, tt.status, w.Body)
+			}
+			checkErrors(t, p, tt.want...)
+		})
+	}
+}
+
 // TestErrorsNothingComputed serves calculations that would compute from
-// the parameters they read, behind a body fault: one that asks
+// the parameters they read, behind a query or body fault: one that asks
 // the parameters for their faults first computes nothing, and even one
 // that does not ask is never answered 200.
 func TestErrorsNothingComputed(t *testing.T) {
@@ -142,6 +187,8 @@ func TestErrorsNothingComputed(t *testing.T) {
 	r.Any("/careful", h.calculation(careful))
 	r.Any("/careless", h.calculation(careless))
 	for _, tt := range []struct{ name, method, target, body string }{
+		{"duplicate", "GET", "?length=1%20m&length=1%20m", ""},
+		{"bad encoding of another parameter", "GET", "?length=1%20m&note=%zz", ""},
 		{"bad member", "POST", "", `{"length": "1 m", "note": null}`},
 		{"duplicate member", "POST", "", `{"length": "1 m", "length": "1 m"}`},
 	} {

@@ -179,30 +179,29 @@ func (x *exchange) release() {
 // parameters, calls the calculation, converts results to their output
 // units and writes the response in the format asked for.
 //
-// Faults met in the members of a JSON body do not end the request there:
+// Faults met before the calculation reads its parameters (in the query
+// string, in the members of a JSON body) do not end the request there:
 // they are recorded in the parameters first, so that the calculation's
 // own reading names the other bad fields too and, with a fault recorded,
-// computes nothing; the one problem then names them all. A body that is
-// not a JSON object at all is refused at once.
+// computes nothing; the one problem then names them all. Only a body that
+// is not a JSON object at all is refused at once.
 func (h *Handler) calculation(spec calcSpec) gin.HandlerFunc {
 	fields := fieldsOf(reflect.TypeOf(spec.results))
 	return func(c *gin.Context) {
 		x := exchanges.Get().(*exchange)
 		defer x.release()
 		vals, p, out := x.vals, &x.p, &x.out
-		if errs := readQuery(c.Request.URL.RawQuery, vals); len(errs) > 0 {
-			h.problem(c, nil, newError(errInvalid, "invalid query string", errs...))
-			return
-		}
-		var faults []FieldError
+		faults := readQuery(c.Request.URL.RawQuery, vals)
 		if c.Request.Method == http.MethodPost {
 			bodyFaults, err := readJSON(c.Request, h.opts.MaxBodyBytes, x.body)
 			if err != nil {
-				eb := err.(*errBody)
-				h.problem(c, nil, newError(eb.kind, eb.msg))
+				// Nothing of the body is read.
+				err = bodyError(err.(*errBody), faults)
+				h.metrics.calcError(spec.name, err)
+				h.problem(c, nil, err)
 				return
 			}
-			faults = mergeBody(vals, x.body, bodyFaults)
+			faults = mergeBody(vals, x.body, append(faults, bodyFaults...))
 		}
 		p.reset(vals, h.cat)
 		for _, f := range faults {
@@ -248,6 +247,15 @@ func mergeBody(vals, body map[string]raw, faults []FieldError) []FieldError {
 		faults = append(faults, FieldError{Parameter: k, Detail: "given in both the query and the body"})
 	}
 	return faults
+}
+
+// bodyError is the problem of a body that is not a JSON object of
+// parameters, naming the faults of the query too.
+func bodyError(eb *errBody, queryFaults []FieldError) error {
+	if len(queryFaults) == 0 {
+		return newError(eb.kind, eb.msg)
+	}
+	return newError(eb.kind, eb.msg+"; "+joinFields(queryFaults), queryFaults...)
 }
 
 // withFaults joins the faults met before the calculation read its
