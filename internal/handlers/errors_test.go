@@ -2,6 +2,8 @@ package handlers
 
 import (
 	"net/http"
+	"reflect"
+	"slices"
 	"strings"
 	"testing"
 
@@ -214,4 +216,47 @@ func TestErrorsNothingComputed(t *testing.T) {
 	if w := do(t, r, "GET", "/careful?length=1%20m", "", ""); w.Code != http.StatusOK || !computed {
 		t.Errorf("valid request: %d computed=%v %s", w.Code, computed, w.Body)
 	}
+}
+
+// TestErrorsNotFinite sends inputs whose result overflows: a pinned strut
+// so short (5e-324 m, the least float64) that its Euler stress is not a
+// finite number. The 422 says which result, and names every input read
+// (not the output options).
+func TestErrorsNotFinite(t *testing.T) {
+	r := newTestHandler(t).Router()
+	const target = "/v1/restraint?material=structural-steel&delta_t=40%20K&length=5e-324%20m&radius_of_gyration=57%20mm&end_condition=pinned&units=si"
+	w := do(t, r, "GET", target, "", "")
+	p := decodeProblem(t, w)
+	if w.Code != http.StatusUnprocessableEntity {
+		t.Fatalf("status %d, want 422: %s", w.Code, w.Body)
+	}
+	var names []string
+	for _, f := range fieldsOf(reflect.TypeOf((*RestraintResults)(nil))) {
+		names = append(names, f.name)
+	}
+	name, ok := between(p.Detail, "the inputs lead to a result, ", ", that is not a finite number")
+	if !ok || !slices.Contains(names, name) {
+		t.Errorf("detail %q does not name a result of %v", p.Detail, names)
+	}
+	var got []string
+	for _, e := range p.Errors {
+		got = append(got, e.Parameter)
+		if !strings.Contains(e.Detail, "with the other inputs leads to a result ("+name+") that is not a finite number") {
+			t.Errorf("%s: detail %q", e.Parameter, e.Detail)
+		}
+	}
+	slices.Sort(got)
+	if wantNames := []string{"delta_t", "end_condition", "length", "material", "radius_of_gyration"}; !slices.Equal(got, wantNames) {
+		t.Errorf("errors name %v, want %v", got, wantNames)
+	}
+}
+
+// between returns the text of s between before and after.
+func between(s, before, after string) (string, bool) {
+	_, rest, ok := strings.Cut(s, before)
+	if !ok {
+		return "", false
+	}
+	mid, _, ok := strings.Cut(rest, after)
+	return mid, ok
 }

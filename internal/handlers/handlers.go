@@ -220,7 +220,7 @@ func (h *Handler) calculation(spec calcSpec) gin.HandlerFunc {
 		items, ok := out.convert(resp.Results, x.items[:0])
 		x.items = items
 		if !ok {
-			err := newError(errUnprocessable, "the inputs lead to a result that is not a finite number; check them for extreme values")
+			err := notFinite(resp, out, p)
 			h.metrics.calcError(spec.name, err)
 			h.problem(c, out, err)
 			return
@@ -284,6 +284,39 @@ func withFaults(err error, faults []FieldError, vals map[string]raw) error {
 		}
 	}
 	return newError(errInvalid, joinFields(all)+extra, all...)
+}
+
+// notFinite is the error of a response with a result that is not a
+// finite number in its output unit. It says which result, and names
+// every input read, since any one of them, with the others, may be the
+// extreme one.
+func notFinite(resp *Response, out *outputOptions, p *params) error {
+	detail := "the inputs lead to a result that is not a finite number; check them for extreme values"
+	leads := "leads to a result that is not a finite number"
+	if name := firstNotFinite(resp.Results, out); name != "" {
+		detail = "the inputs lead to a result, " + name + ", that is not a finite number; check them for extreme values"
+		leads = "leads to a result (" + name + ") that is not a finite number"
+	}
+	var fs []FieldError
+	for _, n := range p.used {
+		if !isControl(n) {
+			fs = append(fs, FieldError{Parameter: n, Detail: "with the other inputs " + leads + ": check for extreme values"})
+		}
+	}
+	return newError(errUnprocessable, detail, fs...)
+}
+
+// firstNotFinite returns the name of the first result of res that is not
+// a finite number in its output unit, or "".
+func firstNotFinite(res any, out *outputOptions) string {
+	v := reflect.ValueOf(res).Elem()
+	for _, f := range fieldsOf(v.Type()) {
+		r := v.Field(f.index).Interface().(*Value)
+		if r != nil && !finite(f.kind.Value(r.si, out.unitFor(f))) {
+			return f.name
+		}
+	}
+	return ""
 }
 
 // complete fills the parts of a response every calculation shares.
