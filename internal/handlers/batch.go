@@ -155,6 +155,7 @@ func (h *Handler) newBatchRun(c *gin.Context, spec batchSpec) (*batchRun, error)
 		if qp.has(n) {
 			qp.take(n)
 			qp.invalid(n, "not used by a batch: every result is a column, and errors go in the error column")
+			delete(vals, n) // one problem with it is enough: readOutput must not read it again
 		}
 	}
 	out := new(outputOptions)

@@ -368,6 +368,11 @@ func TestBatchRefusals(t *testing.T) {
 			}
 		})
 	}
+	// An output option a batch does not use is one problem, even when its
+	// value would be wrong as well.
+	if p := decodeProblem(t, post(t, r, "/v1/batch/expansion/linear?result=x", "text/csv", "", okCSV)); len(p.Errors) != 1 || p.Errors[0].Parameter != "result" {
+		t.Errorf("result=x: errors %+v, want one, on result", p.Errors)
+	}
 	// A body of unknown length over the byte limit is refused as well,
 	// while nothing has been sent.
 	req := httptest.NewRequest(http.MethodPost, "/v1/batch/expansion/linear", io.MultiReader(strings.NewReader(okCSV), strings.NewReader(strings.Repeat("1 m,1e-6/K,1 K\n", 400))))
