@@ -76,6 +76,7 @@ var docsHandler = ginSwagger.WrapHandler(swaggerFiles.Handler, ginSwagger.URL("/
 //	@Produce		html
 //	@Param			any	path		string	true	"index.html or an asset of the page"
 //	@Success		200	{string}	string	"the page"
+//	@Success		301	"for / and /doc.json: to /docs/index.html"
 //	@Failure		404	{object}	Problem
 //	@Router			/docs/{any} [get]
 func (h *Handler) docs(c *gin.Context) {
