@@ -260,3 +260,48 @@ func between(s, before, after string) (string, bool) {
 	mid, _, ok := strings.Cut(rest, after)
 	return mid, ok
 }
+
+// TestErrorsInlineEarly checks that on_error=inline, with a format other
+// than json, answers the faults met before the parameters are read as a
+// 200 "#ERROR:" line, as it does the others; and that where the query has
+// faults, only a literal on_error=inline pair, given once, asks for it.
+func TestErrorsInlineEarly(t *testing.T) {
+	r := newTestHandler(t).Router()
+	const ok = "length=30%20m&alpha=1e-5/K&delta_t=50%20K"
+	tests := []struct {
+		name, method, query, ctype, body string
+		inline                           string // the answer's start, or "" for a problem
+	}{
+		{"duplicate", "GET", ok + "&length=40%20m&format=text&on_error=inline", "", "", `#ERROR: invalid parameter "length": given more than once`},
+		{"bad percent-encoding", "GET", "length=30%2&alpha=1e-5/K&delta_t=50%20K&format=text&on_error=inline", "", "", `#ERROR: invalid parameter "length": value is not valid percent-encoding`},
+		{"bad name", "GET", ok + "&x%zz=1&format=csv&on_error=inline", "", "", `#ERROR: invalid parameter ""x%zz""`},
+		{"malformed body", "POST", "format=text&on_error=inline", "application/json", `{"length": "3 m",`, "#ERROR: malformed JSON: unexpected end of input"},
+		{"bad member", "POST", "format=xml&on_error=inline", "application/json", `{"length": null, "alpha": "1e-5/K", "delta_t": "50 K"}`, `#ERROR: invalid parameter "length": null`},
+		{"content type", "POST", "format=text&on_error=inline", "text/csv", "length\n3 m", "#ERROR: Content-Type must be application/json"},
+		{"query fault and malformed body", "POST", "format=text&on_error=inline&a=1&a=2", "application/json", `[`, "#ERROR: the body must be a JSON object of parameters"},
+		// Not inline:
+		{"json", "GET", ok + "&length=40%20m&on_error=inline", "", "", ""},
+		{"on_error twice", "GET", ok + "&format=text&on_error=inline&on_error=inline", "", "", ""},
+		{"on_error encoded, with a fault", "GET", ok + "&length=40%20m&format=text&on_error=inl%69ne", "", "", ""},
+		{"on_error undecodable", "GET", ok + "&format=text&on_error=inline%zz", "", "", ""},
+		{"on_error problem too", "POST", "format=text&on_error=inline&on%5Ferror=problem", "application/json", `[`, ""},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			w := do(t, r, tt.method, "/v1/expansion/linear?"+tt.query, tt.ctype, tt.body)
+			if tt.inline == "" {
+				if w.Code < 400 {
+					t.Errorf("status %d, want a problem: %s", w.Code, w.Body)
+				}
+				decodeProblem(t, w)
+				return
+			}
+			if w.Code != http.StatusOK || w.Header().Get("Content-Type") != contentTypes["text"] || !strings.HasPrefix(w.Body.String(), tt.inline) {
+				t.Errorf("%d %q %q, want 200 text starting %q", w.Code, w.Header().Get("Content-Type"), w.Body, tt.inline)
+			}
+			if cc := w.Header().Get("Cache-Control"); cc != "no-store" {
+				t.Errorf("Cache-Control %q, want no-store: an error must not be kept", cc)
+			}
+		})
+	}
+}

@@ -11,6 +11,7 @@ import (
 	"reflect"
 	"slices"
 	"sort"
+	"strings"
 	"sync"
 	"sync/atomic"
 
@@ -191,14 +192,20 @@ func (h *Handler) calculation(spec calcSpec) gin.HandlerFunc {
 		x := exchanges.Get().(*exchange)
 		defer x.release()
 		vals, p, out := x.vals, &x.p, &x.out
-		faults := readQuery(c.Request.URL.RawQuery, vals)
+		query := c.Request.URL.RawQuery
+		faults := readQuery(query, vals)
+		queryFaults := len(faults)
 		if c.Request.Method == http.MethodPost {
 			bodyFaults, err := readJSON(c.Request, h.opts.MaxBodyBytes, x.body)
 			if err != nil {
-				// Nothing of the body is read.
+				// Nothing of the body is read; the query still says how
+				// the error is answered.
+				p.reset(vals, h.cat)
+				readOutput(out, p, fields, spec.formats...)
+				honourInline(out, query, faults)
 				err = bodyError(err.(*errBody), faults)
 				h.metrics.calcError(spec.name, err)
-				h.problem(c, nil, err)
+				h.problem(c, out, err)
 				return
 			}
 			faults = mergeBody(vals, x.body, append(faults, bodyFaults...))
@@ -208,6 +215,7 @@ func (h *Handler) calculation(spec calcSpec) gin.HandlerFunc {
 			p.invalid(f.Parameter, f.Detail)
 		}
 		readOutput(out, p, fields, spec.formats...)
+		honourInline(out, query, faults[:queryFaults])
 		resp, err := spec.fn(p)
 		if len(faults) > 0 {
 			err = withFaults(err, faults, vals)
@@ -284,6 +292,35 @@ func withFaults(err error, faults []FieldError, vals map[string]raw) error {
 		}
 	}
 	return newError(errInvalid, joinFields(all)+extra, all...)
+}
+
+// honourInline keeps on_error=inline, as read into out, only where the
+// query that asked for it could be read: when the query had faults, its
+// decoded values do not decide, and the raw query must hold the pair
+// "on_error=inline" itself, with no other on_error pair and no fault of
+// on_error.
+func honourInline(out *outputOptions, query string, queryFaults []FieldError) {
+	if !out.inline || len(queryFaults) == 0 {
+		return
+	}
+	out.inline = inlineLiteral(query) && !slices.ContainsFunc(queryFaults, func(f FieldError) bool { return f.Parameter == "on_error" })
+}
+
+// inlineLiteral reports whether the raw query holds the pair
+// "on_error=inline", as such, and no other pair named on_error.
+func inlineLiteral(query string) bool {
+	found := false
+	for query != "" {
+		var pair string
+		pair, query, _ = strings.Cut(query, "&")
+		switch name, _, _ := strings.Cut(pair, "="); {
+		case pair == "on_error=inline":
+			found = true
+		case name == "on_error":
+			return false
+		}
+	}
+	return found
 }
 
 // notFinite is the error of a response with a result that is not a
