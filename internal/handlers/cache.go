@@ -23,7 +23,7 @@ var (
 	cachePrivate = "private, max-age=" + strconv.Itoa(cacheMaxAge)
 )
 
-// cache sets Cache-Control and ETag on GET requests of the /v1/ routes
+// cache sets Cache-Control and ETag on GET (and HEAD) requests of the /v1/ routes
 // (calculations, materials, units) and answers If-None-Match with 304
 // Not Modified without running the handler.
 //
@@ -36,7 +36,7 @@ var (
 // (and 304), or a 200 "#ERROR:" answer of on_error=inline. Errors of
 // other routes and methods are marked no-store too.
 func (h *Handler) cache(c *gin.Context) {
-	if c.Request.Method != http.MethodGet || !strings.HasPrefix(c.FullPath(), "/v1/") {
+	if (c.Request.Method != http.MethodGet && c.Request.Method != http.MethodHead) || !strings.HasPrefix(c.FullPath(), "/v1/") {
 		// Not cacheable, but an error is still marked no-store, so that
 		// no cache keeps a 404 heuristically.
 		c.Writer = &cacheWriter{ResponseWriter: c.Writer, c: c}
@@ -75,7 +75,8 @@ func (h *Handler) etag(c *gin.Context) string {
 	// encoding.
 	var buf [512]byte
 	b := buf[:0]
-	for _, s := range [...]string{r.Method, r.URL.Path, r.URL.RawQuery, h.opts.Version, h.cat.Version} {
+	// A HEAD is the GET's headers: the same tag.
+	for _, s := range [...]string{http.MethodGet, r.URL.Path, r.URL.RawQuery, h.opts.Version, h.cat.Version} {
 		b = strconv.AppendInt(b, int64(len(s)), 10)
 		b = append(b, ':')
 		b = append(b, s...)

@@ -3,6 +3,7 @@ package handlers
 import (
 	"crypto/sha256"
 	"encoding/hex"
+	"io"
 	"net/http"
 	"net/http/httptest"
 	"strings"
@@ -145,5 +146,50 @@ func TestCachePrivateWithKeys(t *testing.T) {
 	// one; it must carry no ETag.
 	if w3 := getWith(r, "/v1/units"); w3.Code != http.StatusUnauthorized || w3.Header().Get("ETag") != "" {
 		t.Errorf("without a key: status %d, ETag %q", w3.Code, w3.Header().Get("ETag"))
+	}
+}
+
+// HEAD is GET without the content (RFC 9110 9.3.2, 9.1: every
+// general-purpose server supports GET and HEAD): same status, same
+// validators, no body. Over a real connection, so that net/http drops the
+// body as it does in production.
+func TestHead(t *testing.T) {
+	srv := httptest.NewServer(batchTestHandler(t, Options{Version: "1.0.0"}).Router())
+	defer srv.Close()
+	const linear = "/v1/expansion/linear?length=48%20m&alpha=12e-6/K&delta_t=50%20K"
+	for _, tc := range []struct {
+		target string
+		status int
+	}{{linear, 200}, {"/healthz", 200}, {"/v1/materials/concrete", 200}, {"/v1/expansion/linear?length=x", 400}, {"/docs/index.html", 405}} {
+		get, err := http.Get(srv.URL + tc.target)
+		if err != nil {
+			t.Fatal(err)
+		}
+		get.Body.Close()
+		head, err := http.Head(srv.URL + tc.target)
+		if err != nil {
+			t.Fatal(err)
+		}
+		body, _ := io.ReadAll(head.Body)
+		head.Body.Close()
+		want := get.StatusCode
+		if tc.status == 405 {
+			want = 405 // the interactive page's file server answers GET only
+		}
+		if head.StatusCode != want || head.StatusCode != tc.status || len(body) != 0 {
+			t.Errorf("HEAD %s: status %d (GET %d), %d body bytes; want %d and no body", tc.target, head.StatusCode, get.StatusCode, len(body), tc.status)
+		}
+		if tc.status == 200 && head.Header.Get("ETag") != get.Header.Get("ETag") {
+			t.Errorf("HEAD %s: ETag %q, GET %q", tc.target, head.Header.Get("ETag"), get.Header.Get("ETag"))
+		}
+	}
+	req, _ := http.NewRequest(http.MethodPut, srv.URL+linear, nil)
+	resp, err := http.DefaultClient.Do(req)
+	if err != nil {
+		t.Fatal(err)
+	}
+	resp.Body.Close()
+	if got := resp.Header.Get("Allow"); got != "GET, HEAD, POST" {
+		t.Errorf("Allow %q, want GET, HEAD, POST", got)
 	}
 }

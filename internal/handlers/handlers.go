@@ -88,6 +88,11 @@ func (h *Handler) Router() *gin.Engine {
 	r.Use(h.requestID, h.observe, h.recover, h.limitURL, h.shed, h.auth, h.cache)
 	for _, rt := range h.routes() {
 		r.Handle(rt.method, rt.path, rt.handler)
+		if rt.method == http.MethodGet && hasHead(rt.path) {
+			// HEAD is GET without the content (RFC 9110 9.3.2): net/http
+			// drops the body the handler writes.
+			r.Handle(http.MethodHead, rt.path, rt.handler)
+		}
 	}
 	r.NoRoute(func(c *gin.Context) {
 		h.problem(c, nil, newError(errNotFound, "no route "+c.Request.Method+" "+safePath(c.Request.URL.Path)+"; GET /openapi.yaml lists the routes"))
@@ -99,8 +104,13 @@ func (h *Handler) Router() *gin.Engine {
 	return r
 }
 
+// hasHead reports whether the GET route at path answers HEAD too: all do
+// but the interactive page, whose file server answers GET only.
+func hasHead(path string) bool { return !strings.HasPrefix(path, "/docs") }
+
 // Routes lists every registered method and path template, for tests that
-// compare them with the OpenAPI file.
+// compare them with the OpenAPI file. The HEAD twins of the GET routes
+// are not listed.
 func (h *Handler) Routes() [][2]string {
 	var out [][2]string
 	for _, rt := range h.routes() {

@@ -235,11 +235,13 @@ func safePath(p string) string {
 
 // allowed returns the Allow header for a path.
 func allowed(path string) string {
-	if strings.HasPrefix(path, "/v1/batch/") {
+	switch {
+	case strings.HasPrefix(path, "/v1/batch/"):
 		return "POST"
+	case strings.HasPrefix(path, "/v1/") && !strings.HasPrefix(path, "/v1/materials") && path != "/v1/units":
+		return "GET, HEAD, POST"
+	case !hasHead(path):
+		return "GET"
 	}
-	if strings.HasPrefix(path, "/v1/") && !strings.HasPrefix(path, "/v1/materials") && path != "/v1/units" {
-		return "GET, POST"
-	}
-	return "GET"
+	return "GET, HEAD"
 }
