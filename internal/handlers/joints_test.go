@@ -676,7 +676,9 @@ func TestScheduleStepAlias(t *testing.T) {
 	const base = "/v1/joints/gap/schedule?length=60%20m&alpha=12e-6/K&t_min=-25%20degC&t_max=50%20degC&min_gap=20%20mm&t_install_from=0%20degC&t_install_to=20%20degC"
 	for _, step := range []string{"&t_install_step=9%20degF", "&delta_t_install_step=9%20degF"} {
 		w := do(t, r, http.MethodGet, base+step, "", "")
-		var body struct{ Results struct{ Rows []json.RawMessage } }
+		var body struct {
+			Results struct{ Rows []json.RawMessage }
+		}
 		if err := json.Unmarshal(w.Body.Bytes(), &body); err != nil || w.Code != http.StatusOK || len(body.Results.Rows) != 5 {
 			t.Errorf("%s: status %d, %d rows, %v; want 200 with 5 rows", step, w.Code, len(body.Results.Rows), err)
 		}
