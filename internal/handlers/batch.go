@@ -642,7 +642,7 @@ func (r *batchRun) computeRow(c *computed, columns []string, p *params) string {
 	items, ok := r.out.convert(resp.Results, c.items[:0])
 	c.items = items
 	if !ok {
-		return "the inputs lead to a result that is not a finite number; check them for extreme values"
+		return problemOf(notFinite(resp, r.out, p), "").Detail // the words of the single request
 	}
 	c.warnings, c.checks = resp.Warnings, checksOf(resp.Results)
 	return ""
