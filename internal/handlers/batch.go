@@ -150,7 +150,7 @@ func (h *Handler) newBatchRun(c *gin.Context, spec batchSpec) (*batchRun, error)
 	if errs := readQuery(c.Request.URL.RawQuery, vals); len(errs) > 0 {
 		return nil, newError(errInvalid, "invalid query string", errs...)
 	}
-	qp := newParams(vals, h.cat)
+	qp := newParams(vals, h.cat, &h.unitCache)
 	for _, n := range []string{"result", "on_error"} {
 		if qp.has(n) {
 			qp.take(n)
@@ -634,7 +634,7 @@ func (r *batchRun) computeRow(c *computed, columns []string, p *params) string {
 	for k, v := range r.shared {
 		row.vals[k] = v
 	}
-	p.reset(row.vals, r.h.cat)
+	p.reset(row.vals, r.h.cat, &r.h.unitCache)
 	resp, err := r.call(p)
 	if err != nil {
 		return problemOf(err, "").Detail

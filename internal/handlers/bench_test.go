@@ -152,7 +152,7 @@ func benchResponse(b *testing.B) (*Response, []resultItem) {
 	if errs := readQuery(benchQueries["linear"], vals); len(errs) > 0 {
 		b.Fatal(errs)
 	}
-	p := newParams(vals, h.cat)
+	p := newParams(vals, h.cat, &h.unitCache)
 	out := new(outputOptions)
 	readOutput(out, p, fieldsOf(reflect.TypeOf((*LinearResults)(nil))))
 	resp, err := h.linear(p)
@@ -244,7 +244,7 @@ func BenchmarkStages(b *testing.B) {
 		for b.Loop() {
 			clear(vals)
 			_ = readQuery(rawQuery, vals)
-			p.reset(vals, h.cat)
+			p.reset(vals, h.cat, &h.unitCache)
 			readOutput(&out, &p, fields)
 			resp, err := h.linear(&p)
 			if err != nil {

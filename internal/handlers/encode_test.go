@@ -36,7 +36,7 @@ func TestAppendResponseMatchesEncodingJSON(t *testing.T) {
 			if errs := readQuery(tc.query, vals); len(errs) > 0 {
 				t.Fatal(errs)
 			}
-			p := newParams(vals, h.cat)
+			p := newParams(vals, h.cat, &h.unitCache)
 			out := new(outputOptions)
 			readOutput(out, p, fieldsOf(reflect.TypeOf(spec.results)))
 			resp, err := spec.fn(p)

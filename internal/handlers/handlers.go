@@ -20,6 +20,7 @@ import (
 	"go.uber.org/zap"
 
 	"github.com/thermalmovement/service/internal/materials"
+	"github.com/thermalmovement/service/internal/units"
 )
 
 // Options configure the handlers.
@@ -49,6 +50,8 @@ type Handler struct {
 	ready   atomic.Bool
 	// inFlight counts the requests being served, for shed.
 	inFlight atomic.Int64
+	// unitCache reads the quantities of every request and batch row.
+	unitCache units.Cache
 }
 
 // New returns the handlers, registering their metrics on reg.
@@ -210,7 +213,7 @@ func (h *Handler) calculation(spec calcSpec) gin.HandlerFunc {
 			if err != nil {
 				// Nothing of the body is read; the query still says how
 				// the error is answered.
-				p.reset(vals, h.cat)
+				p.reset(vals, h.cat, &h.unitCache)
 				readOutput(out, p, fields, spec.formats...)
 				honourInline(out, query, faults)
 				err = bodyError(err.(*errBody), faults)
@@ -220,7 +223,7 @@ func (h *Handler) calculation(spec calcSpec) gin.HandlerFunc {
 			}
 			faults = mergeBody(vals, x.body, append(faults, bodyFaults...))
 		}
-		p.reset(vals, h.cat)
+		p.reset(vals, h.cat, &h.unitCache)
 		for _, f := range faults {
 			p.invalid(f.Parameter, f.Detail)
 		}

@@ -20,21 +20,22 @@ type params struct {
 	errs   map[errKind][]FieldError
 	inputs Inputs
 	cat    *materials.Catalogue
+	unitsC *units.Cache // reads the quantities
 	// usedBuf and inputsBuf hold used and inputs for a typical request
 	// without further allocation.
 	usedBuf   [16]string
 	inputsBuf [10]Input
 }
 
-func newParams(vals map[string]raw, cat *materials.Catalogue) *params {
+func newParams(vals map[string]raw, cat *materials.Catalogue, uc *units.Cache) *params {
 	p := new(params)
-	p.reset(vals, cat)
+	p.reset(vals, cat, uc)
 	return p
 }
 
 // reset makes p read vals afresh, keeping its buffers.
-func (p *params) reset(vals map[string]raw, cat *materials.Catalogue) {
-	*p = params{vals: vals, cat: cat}
+func (p *params) reset(vals map[string]raw, cat *materials.Catalogue, uc *units.Cache) {
+	*p = params{vals: vals, cat: cat, unitsC: uc}
 	p.used = p.usedBuf[:0]
 	p.inputs = p.inputsBuf[:0]
 }
@@ -127,7 +128,7 @@ func (p *params) quantity(name string) (units.Quantity, bool) {
 	var err error
 	switch r.kind {
 	case rawString:
-		q, err = units.Parse(r.str)
+		q, err = p.unitsC.Parse(r.str)
 	case rawObject:
 		q, err = units.New(r.num, r.unit)
 	case rawNumber:

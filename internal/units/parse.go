@@ -101,7 +101,10 @@ func (q Quantity) String() string {
 // means one over the rest. A digit run straight after a symbol is its
 // exponent ("mm2", "cm4"). Hexadecimal, NaN and infinite numbers are
 // refused, as are numbers too large for a float64.
-func Parse(s string) (Quantity, error) {
+func Parse(s string) (Quantity, error) { return parse(s, parseUnit) }
+
+// parse is Parse, reading the unit expression with unit.
+func parse(s string, unit func(expr, src string) (Unit, error)) (Quantity, error) {
 	in := strings.TrimSpace(s)
 	n := scanNumber(in)
 	if n == 0 {
@@ -121,7 +124,7 @@ func Parse(s string) (Quantity, error) {
 	if strings.HasPrefix(rest, ",") && n < len(in) && len(rest) > 1 && isDigit(rest[1]) {
 		return Quantity{}, errorf(s, ErrNumber, "use \".\" as the decimal separator in "+quote(s))
 	}
-	u, err := parseUnit(rest, s)
+	u, err := unit(rest, s)
 	if err != nil {
 		return Quantity{}, err
 	}
@@ -216,34 +219,60 @@ type unitParser struct {
 	last  symbol // the only symbol, while there is exactly one
 }
 
-// parsedUnits remembers the unit expressions parsed so far: requests,
-// and the rows of a batch above all, repeat a handful of them ("m",
-// "1/K", "degC"). Only successes are kept, since a message quotes the
-// whole input. It is bounded: once it holds maxParsedUnits expressions,
-// others are parsed every time, so that no caller can grow it.
-var parsedUnits struct {
-	m sync.Map // expression -> Unit
-	n atomic.Int32
+// A Cache parses quantities as Parse does, remembering the unit
+// expressions it has read: requests, and the rows of a batch above all,
+// repeat a handful of them ("m", "1/K", "degC"). Only successes are kept
+// (a message quotes the whole input), and only short expressions, at most
+// maxCached of them, so that its memory is bounded whatever callers send:
+// other expressions are parsed every time. The zero value is ready for
+// use, by any number of goroutines; a nil *Cache parses without
+// remembering.
+type Cache struct {
+	m sync.Map     // expression -> Unit
+	n atomic.Int32 // entries stored or being stored
 }
 
-const maxParsedUnits = 512
+// Bounds of a Cache: some 16 KiB of expressions.
+const (
+	maxCached    = 512
+	maxCachedLen = 32
+)
 
-func parseUnit(expr, src string) (Unit, error) {
-	if u, ok := parsedUnits.m.Load(expr); ok {
+// Parse is Parse through the cache.
+func (c *Cache) Parse(s string) (Quantity, error) { return parse(s, c.unit) }
+
+// ParseUnit is ParseUnit through the cache.
+func (c *Cache) ParseUnit(s string) (Unit, error) {
+	t := strings.TrimSpace(s)
+	if t == "" {
+		return Unit{}, errorf(s, ErrNoUnit, "empty unit")
+	}
+	return c.unit(t, s)
+}
+
+func (c *Cache) unit(expr, src string) (Unit, error) {
+	if c == nil { // a nil Cache parses without remembering
+		return parseUnit(expr, src)
+	}
+	if u, ok := c.m.Load(expr); ok {
 		return u.(Unit), nil
 	}
-	u, err := parseUnitExpr(expr, src)
-	if err == nil && parsedUnits.n.Load() < maxParsedUnits {
-		// The key and Symbol are copied: expr is part of a request.
-		u.Symbol = strings.Clone(expr)
-		if _, loaded := parsedUnits.m.LoadOrStore(u.Symbol, u); !loaded {
-			parsedUnits.n.Add(1)
-		}
+	u, err := parseUnit(expr, src)
+	if err != nil || len(expr) > maxCachedLen {
+		return u, err
 	}
-	return u, err
+	if c.n.Add(1) > maxCached { // a slot is taken before the store, so the bound holds under races
+		c.n.Add(-1)
+		return u, nil
+	}
+	u.Symbol = strings.Clone(expr) // expr is part of a request
+	if _, loaded := c.m.LoadOrStore(u.Symbol, u); loaded {
+		c.n.Add(-1)
+	}
+	return u, nil
 }
 
-func parseUnitExpr(expr, src string) (Unit, error) {
+func parseUnit(expr, src string) (Unit, error) {
 	p := &unitParser{src: src, s: expr}
 	f, d, err := p.expr()
 	if err != nil {

@@ -1088,6 +1088,19 @@ func BenchmarkParse(b *testing.B) {
 			}
 		})
 	}
+	// Through a Cache, as the service reads requests: the unit expression
+	// is looked up, not parsed again.
+	var c units.Cache
+	for _, in := range []string{"30 m", "12e-6/K", "12 um/(m*K)"} {
+		b.Run("Cache/"+in, func(b *testing.B) {
+			b.ReportAllocs()
+			for b.Loop() {
+				if _, err := c.Parse(in); err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
+	}
 	b.Run("ParseUnit/um/(m*K)", func(b *testing.B) {
 		b.ReportAllocs()
 		for b.Loop() {
