@@ -159,7 +159,7 @@ func (h *Handler) newBatchRun(c *gin.Context, spec batchSpec) (*batchRun, error)
 		}
 	}
 	out := new(outputOptions)
-	readOutput(out, qp, spec.fields)
+	readOutput(out, qp, spec.fields, nil)
 	format := ""
 	if qp.has("format") {
 		switch out.format {

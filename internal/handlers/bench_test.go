@@ -154,7 +154,7 @@ func benchResponse(b *testing.B) (*Response, []resultItem) {
 	}
 	p := newParams(vals, h.cat, &h.unitCache)
 	out := new(outputOptions)
-	readOutput(out, p, fieldsOf(reflect.TypeOf((*LinearResults)(nil))))
+	readOutput(out, p, fieldsOf(reflect.TypeOf((*LinearResults)(nil))), nil)
 	resp, err := h.linear(p)
 	if err != nil {
 		b.Fatal(err)
@@ -197,7 +197,7 @@ func BenchmarkEncode(b *testing.B) {
 	b.Run("text", func(b *testing.B) {
 		b.ReportAllocs()
 		for b.Loop() {
-			_ = textBody(items, "")
+			_ = textBody(items, nil, "")
 		}
 	})
 	b.Run("csv", func(b *testing.B) {
@@ -245,7 +245,7 @@ func BenchmarkStages(b *testing.B) {
 			clear(vals)
 			_ = readQuery(rawQuery, vals)
 			p.reset(vals, h.cat, &h.unitCache)
-			readOutput(&out, &p, fields)
+			readOutput(&out, &p, fields, nil)
 			resp, err := h.linear(&p)
 			if err != nil {
 				b.Fatal(err)

@@ -150,3 +150,35 @@ func TestBatchRowNotFinite(t *testing.T) {
 		t.Errorf("row error %q, single request %q; want the same, naming critical_stress", got, single.Detail)
 	}
 }
+
+// A spreadsheet cell reads a check as text: result=check_<name> answers
+// pass or fail, beside the numbers of the same request.
+func TestTextCheckResult(t *testing.T) {
+	r := newTestHandler(t).Router()
+	for _, tc := range []struct{ target, want string }{
+		{"/v1/joints/gap?" + closingJoint + "&format=text&result=check_gap_stays_open", "fail"},
+		{"/v1/joints/gap?" + strings.Replace(closingJoint, "gap_install=20", "gap_install=60", 1) + "&format=text&result=check_gap_stays_open", "pass"},
+		{"/v1/joints/gap?" + closingJoint + "&format=text&result=gap_at_t_max", "-13.84"},
+		// A setting table's check fails when a row fails: max_gap 50 mm
+		// against min_gap + range = 74 mm (see TestChartCarriesCautions).
+		{"/v1/joints/gap/schedule?length=60%20m&alpha=12e-6/K&t_min=-25%20degC&t_max=50%20degC&min_gap=20%20mm&max_gap=50%20mm&format=text&result=check_within_max_gap", "fail"},
+	} {
+		w := do(t, r, http.MethodGet, tc.target, "", "")
+		if w.Code != http.StatusOK || w.Body.String() != tc.want {
+			t.Errorf("%s: status %d, body %q; want %q", tc.target, w.Code, w.Body, tc.want)
+		}
+	}
+	// A check these inputs do not have is not computed; an unknown one is
+	// not a result, and the message lists the checks.
+	if w := do(t, r, http.MethodGet, "/v1/joints/gap?"+closingJoint+"&format=text&result=check_within_max_gap", "", ""); w.Code != http.StatusUnprocessableEntity {
+		t.Errorf("check without max_gap: status %d, want 422", w.Code)
+	}
+	w := do(t, r, http.MethodGet, "/v1/joints/gap?"+closingJoint+"&format=text&result=check_nope", "", "")
+	if pr := decodeProblem(t, w); w.Code != http.StatusBadRequest || !strings.Contains(pr.Detail, "checks: check_gap_stays_open") {
+		t.Errorf("unknown check: status %d, %q", w.Code, pr.Detail)
+	}
+	// Calculations without checks take no check_ result.
+	if w := do(t, r, http.MethodGet, "/v1/expansion/linear?length=1%20m&alpha=1e-5/K&delta_t=1%20K&format=text&result=check_gap_stays_open", "", ""); w.Code != http.StatusBadRequest {
+		t.Errorf("check on linear: status %d, want 400", w.Code)
+	}
+}

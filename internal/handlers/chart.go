@@ -135,6 +135,12 @@ func (r *ScheduleResults) csv(resp *Response) []byte {
 // hold them, so they are not offered as a batch.
 func (*ScheduleResults) table() {}
 
+// checkList and checkNames give the checks of the whole table (each
+// passes when every row does) to format=text and result=check_<name>.
+func (r *ScheduleResults) checkList() []Check { return r.Checks }
+
+func (*ScheduleResults) checkNames() []string { return gapCheckNames }
+
 // xml is the table as flat XML: the summary results, one <row> per
 // installation temperature, the checks and the warnings.
 func (r *ScheduleResults) xml(resp *Response) []byte {

@@ -38,7 +38,7 @@ func TestAppendResponseMatchesEncodingJSON(t *testing.T) {
 			}
 			p := newParams(vals, h.cat, &h.unitCache)
 			out := new(outputOptions)
-			readOutput(out, p, fieldsOf(reflect.TypeOf(spec.results)))
+			readOutput(out, p, fieldsOf(reflect.TypeOf(spec.results)), nil)
 			resp, err := spec.fn(p)
 			if err != nil {
 				t.Fatal(err)

@@ -201,6 +201,10 @@ func (x *exchange) release() {
 // is not a JSON object at all is refused at once.
 func (h *Handler) calculation(spec calcSpec) gin.HandlerFunc {
 	fields := fieldsOf(reflect.TypeOf(spec.results))
+	var checks []string
+	if cn, ok := spec.results.(checkNamer); ok {
+		checks = cn.checkNames()
+	}
 	return func(c *gin.Context) {
 		x := exchanges.Get().(*exchange)
 		defer x.release()
@@ -214,7 +218,7 @@ func (h *Handler) calculation(spec calcSpec) gin.HandlerFunc {
 				// Nothing of the body is read; the query still says how
 				// the error is answered.
 				p.reset(vals, h.cat, &h.unitCache)
-				readOutput(out, p, fields, spec.formats...)
+				readOutput(out, p, fields, checks, spec.formats...)
 				honourInline(out, query, faults)
 				err = bodyError(err.(*errBody), faults)
 				h.metrics.calcError(spec.name, err)
@@ -227,7 +231,7 @@ func (h *Handler) calculation(spec calcSpec) gin.HandlerFunc {
 		for _, f := range faults {
 			p.invalid(f.Parameter, f.Detail)
 		}
-		readOutput(out, p, fields, spec.formats...)
+		readOutput(out, p, fields, checks, spec.formats...)
 		honourInline(out, query, faults[:queryFaults])
 		resp, err := spec.fn(p)
 		if len(faults) > 0 {
@@ -425,7 +429,7 @@ func (h *Handler) write(c *gin.Context, out *outputOptions, resp *Response, item
 	var body []byte
 	switch out.format {
 	case "text":
-		body = textBody(items, out.result)
+		body = textBody(items, checksOf(resp.Results), out.result)
 		if body == nil {
 			h.problem(c, out, newError(errUnprocessable, "result "+out.result+" is not computed for these inputs",
 				FieldError{Parameter: "result", Detail: "not computed for these inputs"}))

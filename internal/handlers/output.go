@@ -35,7 +35,9 @@ var baseFormats = []string{"json", "text", "csv", "xml"}
 // readOutput reads the output parameters into o; fields are the
 // calculation's results, formats the formats it offers beyond json, text,
 // csv and xml.
-func readOutput(o *outputOptions, p *params, fields []resultField, formats ...string) {
+// checks are the names of the checks the results can carry: result= may
+// name one as check_<name>, for a text answer of pass or fail.
+func readOutput(o *outputOptions, p *params, fields []resultField, checks []string, formats ...string) {
 	*o = outputOptions{format: "json", system: "si"}
 	if f, ok := p.text("format"); ok {
 		o.format = f
@@ -62,8 +64,12 @@ func readOutput(o *outputOptions, p *params, fields []resultField, formats ...st
 		}
 	}
 	if r, ok := p.text("result"); ok {
-		if fieldByName(fields, r) == nil {
-			p.invalid("result", "no result "+strconv.Quote(r)+"; results: "+fieldNames(fields))
+		if fieldByName(fields, r) == nil && !isCheckResult(checks, r) {
+			msg := "no result " + strconv.Quote(r) + "; results: " + fieldNames(fields)
+			if len(checks) > 0 {
+				msg += "; checks: check_" + strings.Join(checks, ", check_")
+			}
+			p.invalid("result", msg)
 		}
 		o.result = r
 	}
@@ -156,8 +162,24 @@ var contentTypes = map[string]string{
 	"png":  "image/png",
 }
 
-// textBody is the format=text answer: the one number asked for, bare.
-func textBody(items []resultItem, result string) []byte {
+// isCheckResult reports whether result names one of checks, as
+// check_<name>.
+func isCheckResult(checks []string, result string) bool {
+	name, ok := strings.CutPrefix(result, "check_")
+	return ok && contains(checks, name)
+}
+
+// textBody is the format=text answer: the one number asked for, bare, or
+// for result=check_<name> that check's pass or fail, so that a cell can
+// show a failing check beside the number.
+func textBody(items []resultItem, checks []Check, result string) []byte {
+	if name, ok := strings.CutPrefix(result, "check_"); ok {
+		for _, c := range checks {
+			if c.Name == name {
+				return []byte(passFail(c.Pass))
+			}
+		}
+	}
 	for _, it := range items {
 		if result == "" || it.name == result {
 			return units.AppendNumber(nil, it.value)
