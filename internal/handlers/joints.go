@@ -366,7 +366,7 @@ func (in jointInput) checks(s calc.Setting) []Check {
 //	@Param			bounds					query		bool	false	"use the catalogue coefficient band (needs material)"
 //	@Param			units					query		string	false	"si (default) or us"	Enums(si, us)
 //	@Param			format					query		string	false	"json (default), text, csv or xml"	Enums(json, text, csv, xml)
-//	@Param			result					query		string	false	"with format=text: the result to return"
+//	@Param			result					query		string	false	"with format=text: the result to return, or check_<name> (check_gap_stays_open, check_min_gap_kept, check_within_max_gap, check_sealant_extension, check_sealant_compression) for pass or fail"
 //	@Success		200						{object}	Response{results=GapResults}
 //	@Failure		400						{object}	Problem
 //	@Failure		404						{object}	Problem
@@ -500,6 +500,7 @@ type ScheduleResults struct {
 //	@Param			bounds					query		bool	false	"use the catalogue coefficient band (needs material)"
 //	@Param			units					query		string	false	"si (default) or us"	Enums(si, us)
 //	@Param			format					query		string	false	"json (default), text, csv, xml, svg or png"	Enums(json, text, csv, xml, svg, png)
+//	@Param			result					query		string	false	"with format=text: the result to return, or check_<name> for the check of the whole table (fails when a row fails): pass or fail"
 //	@Success		200						{object}	Response{results=ScheduleResults}
 //	@Failure		400						{object}	Problem
 //	@Failure		404						{object}	Problem
