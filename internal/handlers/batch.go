@@ -62,11 +62,12 @@ type checkNamer interface{ checkNames() []string }
 // batchRoutes lists POST /v1/batch/{calculation}: one route whose
 // wildcard names any calculation that has result numbers.
 func (h *Handler) batchRoutes() []route {
-	specs := map[string]batchSpec{}
+	specs, tables := map[string]batchSpec{}, map[string]bool{}
 	for _, c := range h.calculations() {
 		fields := fieldsOf(reflect.TypeOf(c.results))
 		if _, isTable := c.results.(tabular); isTable || len(fields) == 0 {
-			continue // a table or a chart per case: nothing to put in a row
+			tables[c.name] = true // a table or a chart per case: nothing to put in a row
+			continue
 		}
 		spec := batchSpec{calcSpec: c, fields: fields}
 		if cn, ok := c.results.(checkNamer); ok {
@@ -74,16 +75,16 @@ func (h *Handler) batchRoutes() []route {
 		}
 		specs[c.name] = spec
 	}
-	return []route{{http.MethodPost, "/v1/batch/*calculation", h.batch(specs)}}
+	return []route{{http.MethodPost, "/v1/batch/*calculation", h.batch(specs, tables)}}
 }
 
 // batch godoc
 //
 //	@Summary		Many cases of one calculation: CSV or a JSON array in, the same form out
-//	@Description	Runs the calculation named in the path (any calculation endpoint below /v1/, e.g. expansion/linear, expansion/area, expansion/volume) once per row, exactly as a single request would.
+//	@Description	Runs the calculation named in the path (any calculation endpoint below /v1/ but the setting table joints/gap/schedule, which answers a table per case: e.g. expansion/linear, expansion/area, expansion/volume, restraint, joints/gap) once per row, exactly as a single request would.
 //	@Description	In: text/csv with a header row of parameter names and one case a row (an empty cell leaves the parameter out; a UTF-8 byte-order mark is allowed), or application/json with an array of request objects (the members of a single POST).
 //	@Description	Parameters in the query string (other than the output options) apply to every row; a row that gives one too is an error of that row.
-//	@Description	Out: CSV or JSON as format= asks, else as Accept asks (text/csv or application/json), else the form of the body. Each row has every input column as sent, then every result column with its unit in the name (`delta_length [mm]`; units by units= and <result>_unit=, empty or null where a result is not computed for the row), then `warnings` and `error` (empty where the row computed). A JSON answer is an array of flat objects with exactly these keys, a table like the CSV. With a JSON body and a CSV answer the columns are the members of the first element.
+//	@Description	Out: CSV or JSON as format= asks, else as Accept asks (text/csv or application/json), else the form of the body. Each row has every input column as sent, then every result column with its unit in the name (`delta_length [mm]`; units by units= and <result>_unit=, empty or null where a result is not computed for the row), then for joints/gap a check_<name> column per check (pass, fail, or empty where the row has no such check), then `warnings`, `cautions` (each caution once, in the first row it applies to; the standing ones in the first row) and `error` (empty where the row computed). A JSON answer is an array of flat objects with exactly these keys, a table like the CSV. With a JSON body and a CSV answer the columns are the members of the first element.
 //	@Description	One bad row never fails the batch: its error column says what is wrong, in the words of the single request's problem detail.
 //	@Description	Limits: rows (--batch-max-rows, default 100000) and body bytes (--batch-max-bytes, default 32 MiB). The answer streams: rows are computed and sent as they are read, so memory stays flat. A limit reached before 64 KiB of answer is ready is a 413 problem; after that the status line has been sent, so the answer ends with one more row whose error begins "batch stopped after row N:" and whose other cells are empty, and the trailer Batch-Status says "stopped after row N: ..." (else "complete: N rows"). A body whose Content-Length is over the byte limit is refused with 413 at once.
 //	@Description	Demo example: three bays of a warehouse slab, `length,material,t_initial,t_final` / `30 m,concrete,15 degC,-10 degC` / ...
@@ -94,13 +95,13 @@ func (h *Handler) batchRoutes() []route {
 //	@Param			format		query		string	false	"csv or json (default: as Accept asks, else the form of the body)"	Enums(csv, json)
 //	@Param			units		query		string	false	"si (default) or us"	Enums(si, us)
 //	@Param			body		body		string	true	"CSV with a header row of parameter names, or a JSON array of request objects"
-//	@Success		200			{string}	string	"the rows: inputs, results, warnings, error"
+//	@Success		200			{string}	string	"the rows: inputs, results, checks, warnings, cautions, error"
 //	@Failure		400			{object}	Problem
 //	@Failure		404			{object}	Problem
 //	@Failure		413			{object}	Problem
 //	@Failure		415			{object}	Problem
 //	@Router			/v1/batch/{calculation} [post]
-func (h *Handler) batch(specs map[string]batchSpec) gin.HandlerFunc {
+func (h *Handler) batch(specs map[string]batchSpec, tables map[string]bool) gin.HandlerFunc {
 	names := make([]string, 0, len(specs))
 	for n := range specs {
 		names = append(names, n)
@@ -110,7 +111,11 @@ func (h *Handler) batch(specs map[string]batchSpec) gin.HandlerFunc {
 		name := strings.TrimPrefix(c.Param("calculation"), "/")
 		spec, ok := specs[name]
 		if !ok {
-			h.problem(c, nil, newError(errNotFound, "no batch calculation "+strconv.QuoteToASCII(name)+"; batches: "+strings.Join(names, ", ")))
+			msg := "no batch calculation " + strconv.QuoteToASCII(name) + "; batches: " + strings.Join(names, ", ")
+			if tables[name] {
+				msg = name + " answers a table per case, which a batch row cannot hold: batch " + strings.TrimSuffix(name, "/schedule") + " with one row per installation temperature instead"
+			}
+			h.problem(c, nil, newError(errNotFound, msg))
 			return
 		}
 		run, err := h.newBatchRun(c, spec)
@@ -139,8 +144,9 @@ type batchRun struct {
 	sink      *batchSink
 	bw        *bufio.Writer
 	w         batchWriter
-	rows      int    // rows read
-	requestID string // for the log of a failing row
+	rows      int             // rows read
+	requestID string          // for the log of a failing row
+	carried   map[string]bool // cautions already written, by the writer (fresh)
 }
 
 // newBatchRun reads everything that decides the answer before a byte of
@@ -442,6 +448,7 @@ func (r *batchRun) serve() {
 			first = false
 		}
 		for i := range ch.rows {
+			ch.rows[i].notes = r.fresh(ch.rows[i].cautions)
 			if err := r.w.row(&ch.rows[i]); err != nil {
 				return // the client went away
 			}
@@ -493,7 +500,7 @@ func (ch *batchChunk) grow() *computed {
 		c.row = &batchRow{vals: make(map[string]raw, 8)}
 	}
 	c.row.reset()
-	c.items, c.warnings, c.checks, c.msg = c.items[:0], nil, nil, ""
+	c.items, c.warnings, c.checks, c.cautions, c.notes, c.msg = c.items[:0], nil, nil, nil, "", ""
 	return c
 }
 
@@ -553,7 +560,29 @@ type computed struct {
 	items    []resultItem
 	warnings []string
 	checks   []Check
+	cautions []string // the calculation's own, beyond the standing ones
+	notes    string   // the cautions this row is the first to carry (see fresh)
 	msg      string
+}
+
+// fresh returns the cautions that no earlier row of the answer carried,
+// the standing ones first, and records them as carried. A batch holds each
+// caution once, in the first row it applies to: the same 900 bytes on
+// every row of 100,000 would bury the table. The writer calls it, row by
+// row in order.
+func (r *batchRun) fresh(cautions []string) string {
+	var out []string
+	if r.carried == nil {
+		r.carried = map[string]bool{}
+		out = append(out, standingCautions...)
+	}
+	for _, c := range cautions {
+		if !r.carried[c] {
+			r.carried[c] = true
+			out = append(out, c)
+		}
+	}
+	return strings.Join(out, " ")
 }
 
 // finish ends the answer: normally, or stopped by err. A stop before the
@@ -601,7 +630,7 @@ func (r *batchRun) flush() error {
 // runs it, and keeps in c its results in their output units, its warnings
 // or its error message; p is the worker's parameter reader.
 func (r *batchRun) compute(c *computed, columns []string, p *params) {
-	c.warnings, c.checks = nil, nil
+	c.warnings, c.checks, c.cautions = nil, nil, nil
 	c.msg = r.computeRow(c, columns, p)
 }
 
@@ -644,7 +673,7 @@ func (r *batchRun) computeRow(c *computed, columns []string, p *params) string {
 	if !ok {
 		return problemOf(notFinite(resp, r.out, p), "").Detail // the words of the single request
 	}
-	c.warnings, c.checks = resp.Warnings, checksOf(resp.Results)
+	c.warnings, c.checks, c.cautions = resp.Warnings, checksOf(resp.Results), resp.Cautions
 	return ""
 }
 
@@ -903,9 +932,9 @@ type csvRowWriter struct {
 
 func (w *csvRowWriter) header(inputs, results []string) error {
 	w.inputs = inputs
-	w.width = len(inputs) + len(results) + 2
+	w.width = len(inputs) + len(results) + 3
 	b := w.buf[:0]
-	for i, c := range append(append(append([]string(nil), inputs...), results...), "warnings", "error") {
+	for i, c := range append(append(append([]string(nil), inputs...), results...), "warnings", "cautions", "error") {
 		if i > 0 {
 			b = append(b, ',')
 		}
@@ -943,6 +972,8 @@ func (w *csvRowWriter) row(c *computed) error {
 	}
 	b = append(b, ',')
 	b = appendCSVField(b, strings.Join(c.warnings, "; "))
+	b = append(b, ',')
+	b = appendCSVField(b, c.notes)
 	b = append(b, ',')
 	b = appendCSVField(b, c.msg)
 	return w.write(b)
@@ -1080,6 +1111,8 @@ func (w *jsonRowWriter) row(c *computed) error {
 	}
 	w.buf = append(w.buf, `"warnings":`...)
 	w.buf = appendJSONString(w.buf, strings.Join(c.warnings, "; "))
+	w.buf = append(w.buf, `,"cautions":`...)
+	w.buf = appendJSONString(w.buf, c.notes)
 	w.buf = append(w.buf, `,"error":`...)
 	w.buf = appendJSONString(w.buf, c.msg)
 	w.buf = append(w.buf, '}')

@@ -105,8 +105,14 @@ func readCSV(t testing.TB, body []byte) [][]string {
 func checkAgainstSingle(t *testing.T, h http.Handler, calc string, query url.Values, recs [][]string, nInputs int) {
 	t.Helper()
 	header := recs[0]
-	if header[len(header)-1] != "error" || header[len(header)-2] != "warnings" {
-		t.Fatalf("header %q does not end with warnings, error", header)
+	if n := len(header); header[n-1] != "error" || header[n-2] != "cautions" || header[n-3] != "warnings" {
+		t.Fatalf("header %q does not end with warnings, cautions, error", header)
+	}
+	// The standing cautions once, in the first row.
+	for i, rec := range recs[1:] {
+		if got := strings.Contains(rec[len(rec)-2], standingCautions[0]); got != (i == 0) {
+			t.Errorf("row %d cautions %q: the standing ones belong to the first row only", i+1, rec[len(rec)-2])
+		}
 	}
 	for i, rec := range recs[1:] {
 		params := url.Values{}
@@ -122,7 +128,7 @@ func checkAgainstSingle(t *testing.T, h http.Handler, calc string, query url.Val
 		if got := rec[len(rec)-1]; got != detail {
 			t.Errorf("row %d error = %q, want the single request's %q", i+1, got, detail)
 		}
-		for c := nInputs; c < len(header)-2; c++ {
+		for c := nInputs; c < len(header)-3; c++ {
 			if rec[c] != want[header[c]] {
 				t.Errorf("row %d %s = %q, single request %q", i+1, header[c], rec[c], want[header[c]])
 			}
@@ -157,7 +163,7 @@ func TestBatchCSVEqualsSingleRequests(t *testing.T) {
 	}
 	recs := readCSV(t, w.Body.Bytes())
 	wantHeader := []string{"length", "alpha", "material", "delta_t", "t_initial", "t_final",
-		"delta_length [mm]", "final_length [ft]", "strain [1]", "alpha_mean [1/degF]", "warnings", "error"}
+		"delta_length [mm]", "final_length [ft]", "strain [1]", "alpha_mean [1/degF]", "warnings", "cautions", "error"}
 	if diff := cmp.Diff(wantHeader, recs[0]); diff != "" {
 		t.Fatalf("header (-want +got):\n%s", diff)
 	}
@@ -183,7 +189,7 @@ func TestBatchCSVEqualsSingleRequests(t *testing.T) {
 		{8, "unknown material"},
 		{9, `invalid parameter "length"`},
 	} {
-		if got := recs[tc.row][11]; !strings.Contains(got, tc.want) {
+		if got := recs[tc.row][12]; !strings.Contains(got, tc.want) {
 			t.Errorf("row %d error = %q, want it to say %q", tc.row, got, tc.want)
 		}
 		for c := 6; c < 10; c++ {

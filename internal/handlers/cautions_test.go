@@ -86,6 +86,13 @@ func TestBatchRowsCarryChecks(t *testing.T) {
 	if got := open[col["check_within_max_gap"]]; got != "" {
 		t.Errorf("open joint without max_gap: check_within_max_gap = %q, want empty", got)
 	}
+	// Each caution once, in the first row it applies to.
+	if got := closes[col["cautions"]]; !strings.Contains(got, standingCautions[2]) || !strings.Contains(got, jointCautions[1]) {
+		t.Errorf("first row cautions %q lack the standing or joint ones", got)
+	}
+	if got := open[col["cautions"]]; got != "" {
+		t.Errorf("second row cautions %q, want none repeated", got)
+	}
 
 	// The JSON answer has the same keys: "fail", "pass" or null.
 	w = post(t, r, "/v1/batch/joints/gap?format=json", "text/csv", "", body)
@@ -102,8 +109,8 @@ func TestBatchRowsCarryChecks(t *testing.T) {
 func TestScheduleIsNoBatch(t *testing.T) {
 	r := batchTestHandler(t, Options{}).Router()
 	w := post(t, r, "/v1/batch/joints/gap/schedule", "text/csv", "", "length,alpha,t_min,t_max,min_gap\n60 m,12e-6/K,-25 degC,50 degC,20 mm\n")
-	if w.Code != http.StatusNotFound || !strings.Contains(w.Body.String(), "joints/gap") {
-		t.Errorf("status %d, body %s; want 404 listing the batches", w.Code, w.Body)
+	if w.Code != http.StatusNotFound || !strings.Contains(w.Body.String(), "a table per case") || !strings.Contains(w.Body.String(), "batch joints/gap with one row per installation temperature") {
+		t.Errorf("status %d, body %s; want 404 saying why and what to batch instead", w.Code, w.Body)
 	}
 }
 

@@ -92,8 +92,9 @@ func (row *ScheduleRow) value(f resultField) *Value {
 // csv is the table: a header naming each column with its unit, then a
 // row per installation temperature. The checks of each row follow as
 // columns check_<name> holding pass or fail, then the warnings and the
-// cautions of the whole table, on every row, so that no row is read
-// without them.
+// cautions of the whole table, in the first row (on every row they would
+// multiply the table's size by thirty, past what a spreadsheet cell's
+// web-service function reads).
 func (r *ScheduleResults) csv(resp *Response) []byte {
 	var b bytes.Buffer
 	cols := r.columns()
@@ -124,8 +125,12 @@ func (r *ScheduleResults) csv(resp *Response) []byte {
 		for j := range names {
 			b.WriteString("," + passFail(r.rowChecks[i][j].Pass))
 		}
-		b.WriteByte(',')
-		b.Write(notes)
+		if i == 0 {
+			b.WriteByte(',')
+			b.Write(notes)
+		} else {
+			b.WriteString(",,")
+		}
 		b.WriteString("\r\n")
 	}
 	return b.Bytes()

@@ -51,7 +51,7 @@ func FuzzBatchCSV(f *testing.F) {
 		if err != nil {
 			t.Fatalf("answer is not CSV: %v", err)
 		}
-		if n := len(header); n < 2 || header[n-1] != "error" || header[n-2] != "warnings" {
+		if n := len(header); n < 3 || header[n-1] != "error" || header[n-2] != "cautions" || header[n-3] != "warnings" {
 			t.Fatalf("header %q", header)
 		}
 		for {
