@@ -222,6 +222,11 @@ func TestAreaShapesContradict(t *testing.T) {
 			t.Errorf("%s: status %d, errors %+v; want 422 with one error: %s contradicts %s", tc.query, w.Code, pr.Errors, tc.field, tc.first)
 		}
 	}
+	// Three shapes: both that contradict the first are named.
+	w := do(t, r, http.MethodGet, "/v1/expansion/area?area=1%20m2&length=2%20m&width=1%20m&diameter=80%20mm&alpha=1e-5/K&delta_t=1%20K", "", "")
+	if pr := decodeProblem(t, w); w.Code != http.StatusUnprocessableEntity || len(pr.Errors) != 2 || pr.Errors[0].Parameter != "length" || pr.Errors[1].Parameter != "diameter" {
+		t.Errorf("three shapes: status %d, errors %+v; want 422 naming length and diameter", w.Code, pr.Errors)
+	}
 }
 
 // alpha_model=curve asks for a catalogue curve; with an explicit alpha

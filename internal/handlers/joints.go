@@ -598,7 +598,7 @@ func (h *Handler) schedule(p *params) (*Response, error) {
 	}
 	resp := &Response{Results: res, Method: method, Cautions: jointCautions}
 	h.citeJoint(resp, in)
-	resp.Warnings = append(resp.Warnings, failedChecks(res.Checks, " in some rows of the table")...)
+	resp.Warnings = append(resp.Warnings, failedChecks(res.Checks, " in one or more rows of the table")...)
 	return resp, nil
 }
 

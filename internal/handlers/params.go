@@ -361,8 +361,8 @@ func (p *params) exclusive(names ...string) bool {
 		}
 	}
 	if len(given) > 1 {
-		p.unprocessable(given[1], "contradicts "+given[0]+": give only one of "+strings.Join(names, ", "))
 		for _, n := range given[1:] {
+			p.unprocessable(n, "contradicts "+given[0]+": give only one of "+strings.Join(names, ", "))
 			p.markUsed(n) // read, and contradicted: not unknown
 		}
 		return false
