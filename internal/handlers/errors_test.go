@@ -1,6 +1,7 @@
 package handlers
 
 import (
+	"fmt"
 	"net/http"
 	"reflect"
 	"slices"
@@ -303,5 +304,26 @@ func TestErrorsInlineEarly(t *testing.T) {
 				t.Errorf("Cache-Control %q, want no-store: an error must not be kept", cc)
 			}
 		})
+	}
+}
+
+// A body of thousands of bad members gets the first 50 of them and a
+// count, not a problem of a megabyte (common practice, no published
+// source).
+func TestErrorsListBounded(t *testing.T) {
+	r := newTestHandler(t).Router()
+	var b strings.Builder
+	b.WriteString(`{"length": "48 m"`)
+	for i := range 2000 {
+		fmt.Fprintf(&b, `, "x%d": null`, i)
+	}
+	b.WriteString("}")
+	w := do(t, r, http.MethodPost, "/v1/expansion/linear", "application/json", b.String())
+	pr := decodeProblem(t, w)
+	if w.Code != http.StatusBadRequest || len(pr.Errors) != maxListed || !strings.Contains(pr.Detail, "more not listed") {
+		t.Errorf("status %d, %d errors, detail ends %q", w.Code, len(pr.Errors), pr.Detail[max(0, len(pr.Detail)-80):])
+	}
+	if w.Body.Len() > 20000 {
+		t.Errorf("problem of %d bytes", w.Body.Len())
 	}
 }

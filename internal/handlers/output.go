@@ -43,13 +43,13 @@ func readOutput(o *outputOptions, p *params, fields []resultField, checks []stri
 		o.format = f
 		if !contains(baseFormats, f) && !contains(formats, f) {
 			allowed := append(append([]string(nil), baseFormats...), formats...)
-			p.invalid("format", strconv.Quote(f)+" is not one of "+strings.Join(allowed, ", "))
+			p.invalid("format", units.Quote(f)+" is not one of "+strings.Join(allowed, ", "))
 			o.format = "json"
 		}
 	}
 	if s, ok := p.text("units"); ok {
 		if s != "si" && s != "us" {
-			p.invalid("units", strconv.Quote(s)+" is not si or us")
+			p.invalid("units", units.Quote(s)+" is not si or us")
 		} else {
 			o.system = s
 		}
@@ -60,12 +60,12 @@ func readOutput(o *outputOptions, p *params, fields []resultField, checks []stri
 			o.inline = true
 		case "problem":
 		default:
-			p.invalid("on_error", strconv.Quote(e)+" is not inline or problem")
+			p.invalid("on_error", units.Quote(e)+" is not inline or problem")
 		}
 	}
 	if r, ok := p.text("result"); ok {
 		if fieldByName(fields, r) == nil && !isCheckResult(checks, r) {
-			msg := "no result " + strconv.Quote(r) + "; results: " + fieldNames(fields)
+			msg := "no result " + units.Quote(r) + "; results: " + fieldNames(fields)
 			if len(checks) > 0 {
 				msg += "; checks: check_" + strings.Join(checks, ", check_")
 			}
@@ -110,7 +110,7 @@ func (p *params) resultUnit(f resultField) (units.Unit, bool) {
 		if f.kind.Absolute {
 			want = "temperature scale (degC, degF, K, degR)"
 		}
-		p.invalid(name, strconv.Quote(s)+" is not a unit of "+want+", which "+f.name+" is")
+		p.invalid(name, units.Quote(s)+" is not a unit of "+want+", which "+f.name+" is")
 		return units.Unit{}, false
 	}
 	return u, true

@@ -144,13 +144,15 @@ func TestFormatsCarryTheJSONNumbers(t *testing.T) {
 					t.Errorf("CSV %s = %q, JSON %q", h, recs[1][i], want[h])
 				}
 			}
-			if n := len(order); len(recs[1]) == n+2 {
-				if got, want := recs[1][n], strings.Join(notes.Warnings, "; "); got != want {
-					t.Errorf("CSV warnings = %q, JSON %q", got, want)
-				}
-				if got, want := recs[1][n+1], strings.Join(notes.Cautions, " "); got != want {
-					t.Errorf("CSV cautions = %q, JSON %q", got, want)
-				}
+			n := len(order)
+			if len(recs[1]) != n+2 {
+				t.Fatalf("CSV data row has %d fields, want %d results, warnings and cautions", len(recs[1]), n)
+			}
+			if got, want := recs[1][n], strings.Join(notes.Warnings, "; "); got != want {
+				t.Errorf("CSV warnings = %q, JSON %q", got, want)
+			}
+			if got, want := recs[1][n+1], strings.Join(notes.Cautions, " "); got != want {
+				t.Errorf("CSV cautions = %q, JSON %q", got, want)
 			}
 
 			w = do(t, r, http.MethodGet, tc.target+"&format=xml", "", "")

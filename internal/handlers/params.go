@@ -300,7 +300,7 @@ func (p *params) choice(name string, allowed ...string) (string, bool) {
 			return s, true
 		}
 	}
-	p.invalid(name, strconv.Quote(s)+" is not one of "+strings.Join(allowed, ", "))
+	p.invalid(name, units.Quote(s)+" is not one of "+strings.Join(allowed, ", "))
 	return "", false
 }
 
@@ -318,7 +318,7 @@ func (p *params) flag(name string) bool {
 		p.inputs.addText(name, r.str)
 		return r.str == "true"
 	}
-	p.invalid(name, "expected true or false, not "+strconv.Quote(r.origin))
+	p.invalid(name, "expected true or false, not "+units.Quote(r.origin))
 	return false
 }
 
@@ -330,7 +330,7 @@ func (p *params) material(name string) (*materials.Material, bool) {
 	}
 	m, err := p.cat.Get(id)
 	if err != nil {
-		p.fail(errNotFound, name, "unknown material "+strconv.QuoteToASCII(id)+"; GET /v1/materials lists the ids")
+		p.fail(errNotFound, name, "unknown material "+units.Quote(id)+"; GET /v1/materials lists the ids")
 		return nil, false
 	}
 	p.inputs.addText(name, id)

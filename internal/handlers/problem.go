@@ -3,6 +3,7 @@ package handlers
 import (
 	"errors"
 	"net/http"
+	"strconv"
 	"strings"
 )
 
@@ -94,11 +95,18 @@ func fieldsError(groups map[errKind][]FieldError) error {
 	return nil
 }
 
+// maxListed bounds the bad fields a problem lists: a body of thousands of
+// bad members gets the first of them and a count, not a megabyte.
+const maxListed = 50
+
 // joinFields is the detail of a problem that names the bad fields fs.
 func joinFields(fs []FieldError) string {
-	parts := make([]string, len(fs))
-	for i, f := range fs {
-		parts[i] = "invalid parameter \"" + f.Parameter + "\": " + f.Detail
+	parts := make([]string, 0, min(len(fs), maxListed)+1)
+	for _, f := range fs[:min(len(fs), maxListed)] {
+		parts = append(parts, "invalid parameter \""+f.Parameter+"\": "+f.Detail)
+	}
+	if len(fs) > maxListed {
+		parts = append(parts, "and "+strconv.Itoa(len(fs)-maxListed)+" more not listed")
 	}
 	return strings.Join(parts, "; ")
 }
@@ -116,6 +124,6 @@ func problemOf(err error, instance string) Problem {
 		Status:   info.status,
 		Detail:   ae.detail,
 		Instance: instance,
-		Errors:   ae.fields,
+		Errors:   ae.fields[:min(len(ae.fields), maxListed)],
 	}
 }

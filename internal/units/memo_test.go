@@ -86,11 +86,11 @@ func TestQuoteShortensLongInputs(t *testing.T) {
 	if msg := err.Error(); len(msg) > 300 || !strings.Contains(msg, "(7004 bytes)") {
 		t.Errorf("message of %d bytes: %.200s", len(msg), msg)
 	}
-	if got := quote("30 µm"); got != `"30 µm"` {
-		t.Errorf("quote(short) = %s", got)
+	if got := Quote("30 µm"); got != `"30 µm"` {
+		t.Errorf("Quote(short) = %s", got)
 	}
 	// The cut never splits a rune: 79 ASCII bytes, then µ (2 bytes).
-	if got := quote(strings.Repeat("a", 79) + "µµ"); !strings.HasPrefix(got, `"`+strings.Repeat("a", 79)+`"...`) {
+	if got := Quote(strings.Repeat("a", 79) + "µµ"); !strings.HasPrefix(got, `"`+strings.Repeat("a", 79)+`"...`) {
 		t.Errorf("quote cut inside a rune: %s", got)
 	}
 }

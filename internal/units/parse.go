@@ -32,13 +32,13 @@ func (e *Error) Error() string { return e.Msg }
 // Unwrap returns the sentinel, for errors.Is.
 func (e *Error) Unwrap() error { return e.Err }
 
-// maxQuoted bounds the input a message quotes: a message names the
-// input, it need not echo a whole oversized one back.
+// maxQuoted bounds the input a message quotes (see Quote).
 const maxQuoted = 80
 
-// quote quotes s for a message, cut after maxQuoted bytes (at a rune
-// boundary) with its full length said.
-func quote(s string) string {
+// Quote quotes an input for a message, as strconv.Quote does, cut after
+// 80 bytes (at a rune boundary) with its full length said: a message names
+// the input, it need not echo a whole oversized one back.
+func Quote(s string) string {
 	if len(s) <= maxQuoted {
 		return strconv.Quote(s)
 	}
@@ -111,25 +111,25 @@ func parse(s string, unit func(expr, src string) (Unit, error)) (Quantity, error
 		if in == "" {
 			return Quantity{}, errorf(s, ErrSyntax, "empty value")
 		}
-		return Quantity{}, errorf(s, ErrNumber, "no number at the start of "+quote(s)+"; write a value such as \"30 m\"")
+		return Quantity{}, errorf(s, ErrNumber, "no number at the start of "+Quote(s)+"; write a value such as \"30 m\"")
 	}
 	v, err := strconv.ParseFloat(in[:n], 64)
 	if err != nil || math.IsInf(v, 0) {
-		return Quantity{}, errorf(s, ErrNumber, "number out of range in "+quote(s))
+		return Quantity{}, errorf(s, ErrNumber, "number out of range in "+Quote(s))
 	}
 	rest := strings.TrimSpace(in[n:])
 	if rest == "" {
 		return Quantity{Value: v, Unit: Unit{Symbol: "", Dim: Dimensionless, Factor: 1}}, nil
 	}
 	if strings.HasPrefix(rest, ",") && n < len(in) && len(rest) > 1 && isDigit(rest[1]) {
-		return Quantity{}, errorf(s, ErrNumber, "use \".\" as the decimal separator in "+quote(s))
+		return Quantity{}, errorf(s, ErrNumber, "use \".\" as the decimal separator in "+Quote(s))
 	}
 	u, err := unit(rest, s)
 	if err != nil {
 		return Quantity{}, err
 	}
 	if math.IsInf(v*u.Factor, 0) {
-		return Quantity{}, errorf(s, ErrNumber, "number out of range in "+quote(s))
+		return Quantity{}, errorf(s, ErrNumber, "number out of range in "+Quote(s))
 	}
 	return Quantity{Value: v, Unit: u}, nil
 }
@@ -280,7 +280,7 @@ func parseUnit(expr, src string) (Unit, error) {
 	}
 	p.space()
 	if p.i < len(p.s) {
-		return Unit{}, p.fail(ErrSyntax, "unexpected "+quote(p.s[p.i:]))
+		return Unit{}, p.fail(ErrSyntax, "unexpected "+Quote(p.s[p.i:]))
 	}
 	u := Unit{Symbol: expr, Dim: d, Factor: f}
 	if p.terms == 1 && d == Temp && p.last.dim == Temp {
@@ -292,7 +292,7 @@ func parseUnit(expr, src string) (Unit, error) {
 }
 
 func (p *unitParser) fail(err error, what string) *Error {
-	return errorf(p.src, err, what+" in "+quote(p.src))
+	return errorf(p.src, err, what+" in "+Quote(p.src))
 }
 
 // maxExponent bounds each base exponent of a unit, so that no product of
@@ -403,16 +403,16 @@ func (p *unitParser) term() (float64, Dim, error) {
 				p.last = table["1"]
 				return 1, Dimensionless, nil
 			} else {
-				return 0, Dim{}, p.fail(ErrSyntax, "unexpected "+quote(p.s[p.i:]))
+				return 0, Dim{}, p.fail(ErrSyntax, "unexpected "+Quote(p.s[p.i:]))
 			}
 		}
 		u, ok := lookup(name)
 		if !ok {
-			msg := "unknown unit " + quote(name)
+			msg := "unknown unit " + Quote(name)
 			if h, ok := hints[name]; ok {
 				msg += " (" + h + ")"
 			}
-			return 0, Dim{}, errorf(p.src, ErrUnknownUnit, msg+" in "+quote(p.src))
+			return 0, Dim{}, errorf(p.src, ErrUnknownUnit, msg+" in "+Quote(p.src))
 		}
 		f, d = u.factor, u.dim
 		p.terms++
@@ -493,7 +493,7 @@ func (p *unitParser) exponent() (int8, error) {
 		p.i++
 	}
 	if p.i-ds > 1 {
-		return 0, p.fail(ErrSyntax, "exponent "+quote(p.s[start:p.i])+" too large")
+		return 0, p.fail(ErrSyntax, "exponent "+Quote(p.s[start:p.i])+" too large")
 	}
 	n := int8(p.s[ds] - '0')
 	if n == 0 {

@@ -1,6 +1,7 @@
 package units
 
 import (
+	"slices"
 	"sort"
 	"strconv"
 )
@@ -150,7 +151,13 @@ type SymbolInfo struct {
 // out for the prefixable ones, sorted by dimension and then symbol.
 // Products, quotients and powers of these (N/mm2, um/(m*K)) are accepted
 // too.
-func Symbols() []SymbolInfo {
+func Symbols() []SymbolInfo { return slices.Clone(symbolList) }
+
+// symbolList is built once, when the package loads: a bad entry of
+// commonForms stops the program at start-up, never a request.
+var symbolList = listSymbols()
+
+func listSymbols() []SymbolInfo {
 	var out []SymbolInfo
 	for s, u := range table {
 		out = append(out, SymbolInfo{Symbol: s, Dimension: u.dim.String(), Factor: u.factor, Offset: u.offset, Name: u.note})
@@ -171,7 +178,7 @@ func Symbols() []SymbolInfo {
 	for _, f := range commonForms {
 		u, err := ParseUnit(f)
 		if err != nil || seen[f] {
-			panic("units: common form " + f + " is not a new valid unit") // caught by the tests
+			panic("units: common form " + f + " is not a new valid unit") // at start-up, and in the tests
 		}
 		// The factor to 15 digits: 1/degF is 1.8, not the 1.7999999999999998
 		// that dividing by the float64 of 5/9 gives.

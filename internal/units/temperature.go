@@ -42,7 +42,7 @@ func (q Quantity) Temperature() (Temperature, error) {
 	}
 	k := (q.Value + q.Unit.Offset) * q.Unit.Factor
 	if k < 0 {
-		return 0, errorf(q.String(), ErrBelowZero, quote(q.String())+" is below absolute zero")
+		return 0, errorf(q.String(), ErrBelowZero, Quote(q.String())+" is below absolute zero")
 	}
 	return Temperature(k), nil
 }
@@ -74,11 +74,11 @@ func dimError(q Quantity, want Dim, what string) *Error {
 		ex = "20 degC"
 	}
 	if q.Unit.Symbol == "" && want != Dimensionless {
-		return errorf(q.String(), ErrNoUnit, "missing unit in "+quote(q.String())+": expected "+what+" with its unit, such as "+quote(ex))
+		return errorf(q.String(), ErrNoUnit, "missing unit in "+Quote(q.String())+": expected "+what+" with its unit, such as "+Quote(ex))
 	}
-	msg := quote(q.String()) + " is " + q.Unit.Dim.Article() + " " + q.Unit.Dim.String() + ", expected " + what
+	msg := Quote(q.String()) + " is " + q.Unit.Dim.Article() + " " + q.Unit.Dim.String() + ", expected " + what
 	if ex != "" {
-		msg += " such as " + quote(ex)
+		msg += " such as " + Quote(ex)
 	}
 	return errorf(q.String(), ErrDimension, msg)
 }
