@@ -337,9 +337,10 @@ func (s *batchSink) Write(b []byte) (int, error) {
 // batchRow is one case: its parameters in the order sent, and an error
 // found while reading it.
 type batchRow struct {
-	names []string
-	vals  map[string]raw
-	err   string
+	names  []string
+	vals   map[string]raw
+	faults []FieldError // members of a JSON element whose value is not a parameter's
+	err    string
 }
 
 // batchReader yields rows; io.EOF ends them, and any other error stops
@@ -510,7 +511,7 @@ func (row *batchRow) reset() {
 		row.vals = make(map[string]raw, 8)
 	}
 	clear(row.vals)
-	row.names, row.err = row.names[:0], ""
+	row.names, row.err, row.faults = row.names[:0], "", nil
 }
 
 // read reads the body in chunks of batchFlushRows rows and sends each to
@@ -664,7 +665,13 @@ func (r *batchRun) computeRow(c *computed, columns []string, p *params) string {
 		row.vals[k] = v
 	}
 	p.reset(row.vals, r.h.cat, &r.h.unitCache)
+	for _, f := range row.faults { // as calculation does: nothing is computed
+		p.invalid(f.Parameter, f.Detail)
+	}
 	resp, err := r.call(p)
+	if len(row.faults) > 0 {
+		err = withFaults(err, row.faults, row.vals)
+	}
 	if err != nil {
 		return problemOf(err, "").Detail
 	}
@@ -875,35 +882,27 @@ func jsonStop(err error) error {
 	return &stopError{errInvalid, "malformed JSON: " + jsonMessage(err)}
 }
 
-// decodeElement reads one request object, keeping its members in order.
-// What is wrong with it becomes the error of its row.
+// decodeElement reads one request object, keeping its members in order,
+// as a single POST reads its body: a member whose value is not a
+// parameter's is a fault of the row, and the other members are still
+// read, so that the row's error names them all in the words of the single
+// request. An element that is not an object is the error of its row.
 func decodeElement(b []byte) *batchRow {
 	row := &batchRow{vals: map[string]raw{}}
 	dec := json.NewDecoder(bytes.NewReader(b))
 	dec.UseNumber()
-	t, err := dec.Token()
-	if d, ok := t.(json.Delim); err != nil || !ok || d != '{' {
-		return &batchRow{err: "each element of a batch is a JSON object of parameters"}
+	if t, err := dec.Token(); err == nil {
+		if d, ok := t.(json.Delim); !ok || d != '{' {
+			return &batchRow{err: "each element of a batch is a JSON object of parameters"}
+		}
 	}
-	for dec.More() {
-		kt, err := dec.Token()
-		if err != nil {
-			return &batchRow{err: "malformed JSON: " + jsonMessage(err)}
-		}
-		key := kt.(string)
-		if _, dup := row.vals[key]; dup {
-			return &batchRow{err: "parameter " + strconv.Quote(key) + " given more than once"}
-		}
-		v, err := decodeValue(dec, key)
-		if err != nil {
-			out := &batchRow{err: err.Error()}
-			// Keep what was read, so the row still shows its inputs.
-			out.names, out.vals = row.names, row.vals
-			return out
-		}
-		row.names = append(row.names, key)
-		row.vals[key] = v
+	dec = json.NewDecoder(bytes.NewReader(b))
+	dec.UseNumber()
+	faults, err := decodeMembers(dec, row.vals, &row.names)
+	if err != nil {
+		return &batchRow{err: err.Error()}
 	}
+	row.faults = faults
 	return row
 }
 
@@ -1072,6 +1071,8 @@ func (w *jsonRowWriter) row(c *computed) error {
 			v = raw{kind: rawString}
 		}
 		switch v.kind {
+		case rawInvalid: // a value that could not be read: the row's error says why
+			w.buf = append(w.buf, "null"...)
 		case rawString:
 			w.buf = appendJSONString(w.buf, v.str)
 		case rawNumber:

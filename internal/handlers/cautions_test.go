@@ -189,3 +189,24 @@ func TestTextCheckResult(t *testing.T) {
 		t.Errorf("check on linear: status %d, want 400", w.Code)
 	}
 }
+
+// A JSON batch row with bad members says what the single POST of the same
+// object says, every bad member named (no physical value is checked).
+func TestBatchJSONRowErrorsAsSingle(t *testing.T) {
+	r := batchTestHandler(t, Options{}).Router()
+	for _, elem := range []string{
+		`{"length": null, "alpha": "1e-5/K", "delta_t": "x"}`,
+		`{"length": {"value": 48}, "alpha": [1], "delta_t": "50 K"}`,
+		`{"length": "3 m", "alpha": "1e-5/K", "delta_t": "5 K", "length": "4 m"}`,
+	} {
+		single := decodeProblem(t, do(t, r, http.MethodPost, "/v1/expansion/linear", "application/json", elem))
+		w := post(t, r, "/v1/batch/expansion/linear?format=json", "application/json", "", "["+elem+"]")
+		var rows []map[string]any
+		if err := json.Unmarshal(w.Body.Bytes(), &rows); err != nil || len(rows) != 1 {
+			t.Fatalf("%s: %v: %s", elem, err, w.Body)
+		}
+		if got := rows[0]["error"]; got != single.Detail {
+			t.Errorf("%s: row error %q, single POST %q", elem, got, single.Detail)
+		}
+	}
+}

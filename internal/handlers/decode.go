@@ -173,7 +173,7 @@ func decodeObject(body []byte, into map[string]raw) ([]FieldError, error) {
 	}
 	dec := json.NewDecoder(bytes.NewReader(body))
 	dec.UseNumber()
-	errs, err := decodeMembers(dec, into)
+	errs, err := decodeMembers(dec, into, nil)
 	if err != nil {
 		return nil, err
 	}
@@ -186,7 +186,8 @@ func decodeObject(body []byte, into map[string]raw) ([]FieldError, error) {
 // decodeMembers reads the object of parameters, member by member. A
 // member whose value is not a parameter's is a fault of that member, and
 // reading goes on with the next; malformed JSON ends the reading.
-func decodeMembers(dec *json.Decoder, into map[string]raw) ([]FieldError, error) {
+// order, when not nil, receives the names in the order sent.
+func decodeMembers(dec *json.Decoder, into map[string]raw, order *[]string) ([]FieldError, error) {
 	t, err := dec.Token()
 	if err != nil {
 		return nil, malformed(err, "")
@@ -215,6 +216,9 @@ func decodeMembers(dec *json.Decoder, into map[string]raw) ([]FieldError, error)
 			continue
 		}
 		into[key] = v
+		if order != nil {
+			*order = append(*order, key)
+		}
 	}
 	if _, err := dec.Token(); err != nil {
 		return nil, malformed(err, "")
