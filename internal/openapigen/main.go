@@ -598,8 +598,9 @@ func completeBatch(op *openapi3.Operation) {
 	}
 	if mt := rr.Value.Content.Get("application/json"); mt != nil {
 		mt.Schema = array("one flat object a row: the inputs as sent, then each result named with its unit "+
-			"(\"delta_length [mm]\", null where not computed), then warnings and error",
-			member(true, "an input as sent, a result number (null where not computed), a check's pass or fail, warnings or error"))
+			"(\"delta_length [mm]\", null where not computed), then for joints/gap check_<name> (pass, fail or null), then "+
+			"warnings, cautions (each caution once, in the first row it applies to) and error",
+			member(true, "an input as sent, a result number (null where not computed), a check's pass or fail, warnings, cautions or error"))
 	}
 	if rr.Value.Headers == nil {
 		rr.Value.Headers = openapi3.Headers{}
