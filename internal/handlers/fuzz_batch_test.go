@@ -3,6 +3,7 @@ package handlers
 import (
 	"bytes"
 	"encoding/csv"
+	"encoding/json"
 	"io"
 	"net/http"
 	"net/http/httptest"
@@ -64,6 +65,59 @@ func FuzzBatchCSV(f *testing.F) {
 			}
 			if strings.Contains(rec[len(rec)-1], "unexpected condition") {
 				t.Fatalf("internal error in a row: %q", rec)
+			}
+		}
+	})
+}
+
+// FuzzBatchJSON sends arbitrary JSON bodies to the joint-gap batch, whose
+// rows carry checks and cautions: the service never panics and never
+// answers 500, a 200 answer is a JSON array of flat objects each with the
+// check, warnings, cautions and error keys, and no row meets an internal
+// error.
+func FuzzBatchJSON(f *testing.F) {
+	for _, s := range []string{
+		`[{"length": "60 m", "alpha": "12e-6/K", "t_min": "-36 degC", "t_max": "59 degC", "t_install": "12 degC", "gap_install": "20 mm"}]`,
+		`[{"length": "60 m", "material": "structural-steel", "t_min": "-25 degC", "t_max": "50 degC", "min_gap": "20 mm", "max_gap": "40 mm", "movement_capability": 25}]`,
+		`[{"length": null, "alpha": [1], "t_min": {"value": 1}, "t_max": "x", "length": "2 m"}, 5, "a", {}]`,
+		`[{"length": {"value": 60, "unit": "m"}, "alpha": 1e308, "t_min": "-1e308 degC", "t_max": "1e308 K", "gap_install": "-0 mm"}]`,
+		`[{"format": "text", "units": "us"}]`,
+		`[`, `{}`, `[[[[]]]]`, `[{"a": {"b": {"c": {}}}}]`, "",
+	} {
+		f.Add([]byte(s))
+	}
+	h := batchTestHandler(f, Options{BatchMaxRows: 50, BatchMaxBytes: 16 << 10})
+	r := h.Router()
+	f.Fuzz(func(t *testing.T, body []byte) {
+		req := httptest.NewRequest(http.MethodPost, "/v1/batch/joints/gap", bytes.NewReader(body))
+		req.Header.Set("Content-Type", "application/json")
+		w := httptest.NewRecorder()
+		r.ServeHTTP(w, req)
+		switch w.Code {
+		case http.StatusOK:
+		case http.StatusBadRequest, http.StatusRequestEntityTooLarge:
+			if w.Header().Get("Content-Type") != "application/problem+json" {
+				t.Fatalf("status %d without a problem: %q", w.Code, w.Body)
+			}
+			return
+		default:
+			t.Fatalf("status %d: %s", w.Code, w.Body)
+		}
+		var rows []map[string]any
+		if err := json.Unmarshal(w.Body.Bytes(), &rows); err != nil {
+			t.Fatalf("answer is not a JSON array of objects: %v: %.300s", err, w.Body)
+		}
+		for i, row := range rows {
+			if msg, _ := row["error"].(string); strings.HasPrefix(msg, "batch stopped") {
+				continue // the in-band end of a batch stopped by a limit
+			}
+			for _, k := range []string{"check_gap_stays_open", "warnings", "cautions", "error"} {
+				if _, ok := row[k]; !ok {
+					t.Fatalf("row %d lacks %q: %v", i, k, row)
+				}
+			}
+			if msg, _ := row["error"].(string); strings.Contains(msg, "unexpected condition") {
+				t.Fatalf("internal error in row %d: %v", i, row)
 			}
 		}
 	})
