@@ -307,10 +307,17 @@ func TestCalcReadsTheJSONNumbers(t *testing.T) {
 	// An error as a cell shows it: on_error=inline; without it, #VALUE!.
 	bad := srv.URL + "/v1/expansion/linear?length=-48%20m&alpha=12e-6/K&delta_t=50%20K&format=text&api_key=" + apiKey
 	noKey := srv.URL + "/v1/expansion/linear?length=48%20m&alpha=12e-6/K&delta_t=50%20K&format=text"
+	// A joint's check beside its gap, as the spreadsheet guide puts it.
+	// Demo data: a 60 m steel deck set at 12 degC with 20 mm, designed for
+	// -36..59 degC, closes (12e-6/K x 60 m x 47 K = 33.84 mm of closing,
+	// AASHTO LRFD eq. 3.12.2.3-1, from memory).
+	closing := srv.URL + "/v1/joints/gap?length=60%20m&alpha=12e-6/K&t_min=-36%20degC&t_max=59%20degC&t_install=12%20degC&gap_install=20%20mm&api_key=" + apiKey
 	cells = append(cells,
 		cellIn{Cell: "H1", Formula: `=WEBSERVICE("` + bad + `&on_error=inline")`},
 		cellIn{Cell: "H2", Formula: `=WEBSERVICE("` + bad + `")`},
-		cellIn{Cell: "H3", Formula: `=WEBSERVICE("` + noKey + `")`})
+		cellIn{Cell: "H3", Formula: `=WEBSERVICE("` + noKey + `")`},
+		cellIn{Cell: "H4", Formula: `=WEBSERVICE("` + closing + `&format=text&result=check_gap_stays_open")`},
+		cellIn{Cell: "H5", Formula: `=FILTERXML(WEBSERVICE("` + closing + `&format=xml");"//check[@name='gap_stays_open']/@pass")`})
 
 	start := time.Now()
 	got := o.set(t, cells)
@@ -339,6 +346,9 @@ func TestCalcReadsTheJSONNumbers(t *testing.T) {
 	}
 	if got["H2"].Error == 0 || got["H3"].Error == 0 {
 		t.Errorf("error answers without on_error=inline read as %q and %q, want Calc errors", got["H2"].String, got["H3"].String)
+	}
+	if got["H4"].String != "fail" || got["H5"].String != "false" {
+		t.Errorf("the check of a closing joint reads %q (text) and %q (XML), want fail and false", got["H4"].String, got["H5"].String)
 	}
 }
 
