@@ -61,6 +61,7 @@ type config struct {
 	maxURLBytes     int64
 	maxBodyBytes    int64
 	logLevel        string
+	logSampling     bool
 	apiKeysFile     string
 	maxInFlight     int64
 	batchMaxRows    int64
@@ -108,6 +109,16 @@ func newFlagSet(c *config, getenv func(string) string, out io.Writer) (*flag.Fla
 		}
 		fs.DurationVar(p, name, def, usage+" (env "+envName(name)+")")
 	}
+	boolean := func(p *bool, name string, def bool, usage string) {
+		if v := getenv(envName(name)); v != "" {
+			b, err := strconv.ParseBool(v)
+			if err != nil {
+				*errs = append(*errs, fmt.Errorf("%s=%q: %w", envName(name), v, err))
+			}
+			def = b
+		}
+		fs.BoolVar(p, name, def, usage+" (env "+envName(name)+")")
+	}
 	integer := func(p *int64, name string, def int64, usage string) {
 		if v := getenv(envName(name)); v != "" {
 			n, err := strconv.ParseInt(v, 10, 64)
@@ -130,6 +141,7 @@ func newFlagSet(c *config, getenv func(string) string, out io.Writer) (*flag.Fla
 	integer(&c.maxURLBytes, "max-url-bytes", 8<<10, "longest request URI (path and query), bytes; longer: 414")
 	integer(&c.maxBodyBytes, "max-body-bytes", 64<<10, "largest JSON body of a calculation, bytes")
 	str(&c.logLevel, "log-level", "info", "debug, info, warn or error")
+	boolean(&c.logSampling, "log-sampling", true, fmt.Sprintf("sample repeated log lines as zap's production logger does: each second, the first %d lines of a level and message, then every %dth; false logs every line", logSampleFirst, logSampleThereafter))
 	str(&c.apiKeysFile, "api-keys-file", "", "file of accepted API keys as SHA-256 hashes with labels; empty: no keys required")
 	integer(&c.maxInFlight, "max-in-flight", 256, "requests served at once; beyond, 503 with Retry-After (0: no bound)")
 	integer(&c.batchMaxRows, "batch-max-rows", 100000, "rows of one batch request")
@@ -185,6 +197,42 @@ func (c config) check() error {
 	return errors.Join(errs...)
 }
 
+// The sampling figures of zap.NewProductionConfig.
+const (
+	logSampleFirst      = 100
+	logSampleThereafter = 100
+)
+
+// newLogger builds the JSON logger. Its lines are buffered and written at
+// least once a second (one write per line would cost a system call per
+// request); Stop flushes them at exit, and the lines that mark the life of
+// the process are synced at once.
+//
+// With sampling, each second the first logSampleFirst lines of a level and
+// message are written, then every logSampleThereafter-th, as zap's
+// production logger does: at the request rates of a design office every
+// request is logged, and under load the log costs little.
+// thermal_log_lines_dropped_total counts the lines left out; the request
+// metrics count every request either way.
+func newLogger(level zapcore.Level, sampling bool, out io.Writer, reg prometheus.Registerer) (*zap.Logger, *zapcore.BufferedWriteSyncer) {
+	ws := &zapcore.BufferedWriteSyncer{WS: zapcore.AddSync(out), Size: 256 << 10, FlushInterval: time.Second}
+	core := zapcore.NewCore(zapcore.NewJSONEncoder(zap.NewProductionEncoderConfig()), ws, level)
+	dropped := prometheus.NewCounter(prometheus.CounterOpts{
+		Name: "thermal_log_lines_dropped_total",
+		Help: "Log lines left out by sampling (--log-sampling); the request metrics still count every request.",
+	})
+	reg.MustRegister(dropped)
+	if sampling {
+		core = zapcore.NewSamplerWithOptions(core, time.Second, logSampleFirst, logSampleThereafter,
+			zapcore.SamplerHook(func(_ zapcore.Entry, d zapcore.SamplingDecision) {
+				if d&zapcore.LogDropped != 0 {
+					dropped.Inc()
+				}
+			}))
+	}
+	return zap.New(core), ws
+}
+
 // checkAddr checks a listen address of the form host:port, the port a
 // number (0 picks a free one).
 func checkAddr(addr string) error {
@@ -236,17 +284,9 @@ func run(ctx context.Context, args []string, getenv func(string) string, stdout 
 		return err
 	}
 	level, _ := zapcore.ParseLevel(cfg.logLevel)
-	zc := zap.NewProductionConfig()
-	zc.Level = zap.NewAtomicLevelAt(level)
-	zc.Sampling = nil
-	enc := zapcore.NewJSONEncoder(zc.EncoderConfig)
-	// Log lines are buffered and written at least once a second (one
-	// write per line would cost a system call per request); Stop flushes
-	// them at exit, and the lines that mark the life of the process are
-	// synced at once.
-	logOut := &zapcore.BufferedWriteSyncer{WS: zapcore.AddSync(stdout), Size: 256 << 10, FlushInterval: time.Second}
+	reg := prometheus.NewRegistry()
+	log, logOut := newLogger(level, cfg.logSampling, stdout, reg)
 	defer func() { _ = logOut.Stop() }()
-	log := zap.New(zapcore.NewCore(enc, logOut, level))
 
 	keys, err := loadAPIKeys(cfg.apiKeysFile)
 	if err != nil {
@@ -256,7 +296,6 @@ func run(ctx context.Context, args []string, getenv func(string) string, stdout 
 	if err != nil {
 		return err
 	}
-	reg := prometheus.NewRegistry()
 	reg.MustRegister(collectors.NewGoCollector(), collectors.NewProcessCollector(collectors.ProcessCollectorOpts{}))
 	metricsHandler := promhttp.HandlerFor(reg, promhttp.HandlerOpts{Registry: reg})
 	opts := handlers.Options{Version: version, Commit: commit, MaxBodyBytes: cfg.maxBodyBytes, MaxURLBytes: int(cfg.maxURLBytes),

@@ -222,7 +222,9 @@ func TestHelpListsEveryFlag(t *testing.T) {
 	n := 0
 	fs.VisitAll(func(f *flag.Flag) {
 		n++
-		if !strings.Contains(help, "  -"+f.Name+" ") || !strings.Contains(help, "(env "+envName(f.Name)+")") {
+		// A flag's name is followed by its type, or by the end of the line
+		// for a bool.
+		if !strings.Contains(help, "  -"+f.Name+" ") && !strings.Contains(help, "  -"+f.Name+"\n") || !strings.Contains(help, "(env "+envName(f.Name)+")") {
 			t.Errorf("--help lacks -%s with (env %s):\n%s", f.Name, envName(f.Name), help)
 		}
 	})
@@ -371,5 +373,60 @@ func TestAPIKeysAndLimits(t *testing.T) {
 	}
 	if err := json.Unmarshal(body, &pr); err != nil || pr.Status != http.StatusRequestURITooLong || pr.Type == "" {
 		t.Errorf("414 body %s is not a problem with status 414", body)
+	}
+}
+
+// TestLogSampling sends 400 requests within a second or two: with the
+// default sampling fewer request lines are written, and the lines written
+// plus thermal_log_lines_dropped_total account for every request; with
+// --log-sampling=false (LOG_SAMPLING=false) every request has its line.
+// The figures (first 100 a second, then every 100th) are those of
+// zap.NewProductionConfig, read from zap's config.go.
+func TestLogSampling(t *testing.T) {
+	const n = 400
+	for _, tc := range []struct {
+		name     string
+		env      map[string]string
+		sampling bool
+	}{{"default", nil, true}, {"off", map[string]string{"LOG_SAMPLING": "false"}, false}} {
+		t.Run(tc.name, func(t *testing.T) {
+			ctx, cancel := context.WithCancel(context.Background())
+			defer cancel()
+			addr, _, done, logs := startRun(t, ctx, []string{"--addr", "127.0.0.1:0"}, func(k string) string { return tc.env[k] })
+			keepAlive := &http.Client{Timeout: 5 * time.Second}
+			for i := range n {
+				resp, err := keepAlive.Get("http://" + addr + linearQuery)
+				if err != nil {
+					t.Fatal(err)
+				}
+				_, _ = io.Copy(io.Discard, resp.Body)
+				resp.Body.Close()
+				if resp.StatusCode != http.StatusOK {
+					t.Fatalf("request %d = %d", i, resp.StatusCode)
+				}
+			}
+			_, _, metrics := get(t, "http://"+addr+"/metrics")
+			var dropped float64
+			for line := range strings.Lines(string(metrics)) {
+				if v, ok := strings.CutPrefix(line, "thermal_log_lines_dropped_total "); ok {
+					if _, err := fmt.Sscan(v, &dropped); err != nil {
+						t.Fatalf("metric line %q: %v", line, err)
+					}
+				}
+			}
+			cancel()
+			if err := <-done; err != nil {
+				t.Fatal(err)
+			}
+			lines := strings.Count(logs.String(), `"msg":"request","method":"GET","route":"/v1/expansion/linear"`)
+			switch {
+			case !bytes.Contains(metrics, []byte("\nthermal_log_lines_dropped_total ")):
+				t.Fatalf("/metrics lacks thermal_log_lines_dropped_total:\n%s", metrics)
+			case tc.sampling && (lines >= n || lines+int(dropped) != n):
+				t.Errorf("sampling: %d request lines and %v dropped, want fewer than %d lines, adding up to %d", lines, dropped, n, n)
+			case !tc.sampling && (lines != n || dropped != 0):
+				t.Errorf("no sampling: %d request lines and %v dropped, want %d and 0", lines, dropped, n)
+			}
+		})
 	}
 }
