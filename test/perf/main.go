@@ -201,7 +201,7 @@ func run(c config) error {
 				return err
 			}
 			res[s] = append(res[s], x)
-			fmt.Printf("round %d  %-8s %9.0f req/s  p50 %8s  p99 %8s%s\n", r+1, s.name, x.rps, us(x.p50), us(x.p99), cpuNote(x.cpu))
+			fmt.Printf("round %d  %-8s %9.0f req/s  p50 %8s  p99 %8s%s\n", r+1, s.name, x.rps, us(x.p50), us(x.p99), cpuNote(x.cpu, x.client))
 		}
 	}
 	fmt.Println()
@@ -222,6 +222,7 @@ func run(c config) error {
 	fmt.Printf("ratio service/bare: %.3f (median req/s over median req/s; per-round ratios %.3f..%.3f)\n",
 		ratio, ratios[0], ratios[len(ratios)-1])
 	fmt.Printf("%s: throughput ratio %.3f, target >= %.2f\n", verdict(ratio >= targetRatio), ratio, targetRatio)
+	cpuBudget(res[svc], res[bare])
 	// The bare server does the same work every round: when its rounds
 	// differ much, something else was using the machine.
 	if noise := b.rpsMax / b.rpsMin; noise > maxNoise {
@@ -245,12 +246,42 @@ func run(c config) error {
 	return batchErr
 }
 
-// cpuNote shows a server's CPU time per request, when it is known.
-func cpuNote(d time.Duration) string {
-	if d <= 0 {
+// cpuNote shows the CPU time per request of a server and of the load
+// generator, when they are known.
+func cpuNote(server, client time.Duration) string {
+	if server <= 0 {
 		return ""
 	}
-	return fmt.Sprintf("  server CPU %5.1f µs/req", float64(d)/float64(time.Microsecond))
+	return fmt.Sprintf("  server CPU %5.1f µs/req  load generator CPU %5.1f µs/req", micros(server), micros(client))
+}
+
+func micros(d time.Duration) float64 { return float64(d) / float64(time.Microsecond) }
+
+// cpuBudget explains the ratio by the CPU each request costs. Server and
+// load generator share the machine's cores, so when the cores are the
+// bound, req/s is about cores / (server CPU + load generator CPU) per
+// request, and the ratio about (bare + its load generator) / (service +
+// its load generator). It prints the medians and the service CPU per
+// request at which the ratio would reach the target.
+func cpuBudget(svc, bare []result) {
+	med := func(rs []result, f func(result) time.Duration) time.Duration {
+		x := make([]time.Duration, len(rs))
+		for i, r := range rs {
+			x[i] = f(r)
+		}
+		slices.Sort(x)
+		return median(x)
+	}
+	server := func(r result) time.Duration { return r.cpu }
+	client := func(r result) time.Duration { return r.client }
+	s, sc, b, bc := med(svc, server), med(svc, client), med(bare, server), med(bare, client)
+	if s <= 0 || b <= 0 {
+		return
+	}
+	fmt.Printf("CPU per request (medians): service %.1f + load generator %.1f µs; bare %.1f + load generator %.1f µs\n",
+		micros(s), micros(sc), micros(b), micros(bc))
+	fmt.Printf("  (bare + its load generator) / (service + its load generator) = %.3f; the ratio %.2f needs the service at about %.0f µs/req\n",
+		micros(b+bc)/micros(s+sc), targetRatio, micros(b+bc)/targetRatio-micros(sc))
 }
 
 // maxNoise is the largest max/min of the bare server's rounds for which
@@ -572,6 +603,7 @@ type result struct {
 	rps      float64
 	p50, p99 time.Duration
 	cpu      time.Duration // CPU (user+system) of the server process per request; 0 when unknown
+	client   time.Duration // CPU of this process (the load generator) per request; 0 with -inprocess
 }
 
 // load runs the closed loop against s for d and checks every answer
@@ -586,7 +618,7 @@ func load(c config, s *server, want []byte, d time.Duration) (result, error) {
 		tr = &http.Transport{MaxIdleConnsPerHost: c.concurrency, MaxConnsPerHost: c.concurrency, DisableCompression: true}
 		defer tr.CloseIdleConnections()
 	}
-	cpu0 := s.cpuTime()
+	cpu0, self0 := s.cpuTime(), selfCPU()
 	start := time.Now()
 	timer := time.AfterFunc(d, func() { stop.Store(true) })
 	defer timer.Stop()
@@ -628,13 +660,25 @@ func load(c config, s *server, want []byte, d time.Duration) (result, error) {
 	if len(all) == 0 {
 		return result{}, fmt.Errorf("load on %s: no request completed", s.name)
 	}
-	var cpu time.Duration
+	var cpu, client time.Duration
 	if cpu1 := s.cpuTime(); cpu1 > 0 && cpu0 > 0 {
 		cpu = (cpu1 - cpu0) / time.Duration(len(all))
+		client = (selfCPU() - self0) / time.Duration(len(all))
 	}
 	slices.Sort(all)
 	q := func(p float64) time.Duration { return all[min(len(all)-1, int(p*float64(len(all))))] }
-	return result{rps: float64(len(all)) / elapsed.Seconds(), p50: q(0.50), p99: q(0.99), cpu: cpu}, nil
+	return result{rps: float64(len(all)) / elapsed.Seconds(), p50: q(0.50), p99: q(0.99), cpu: cpu, client: client}, nil
+}
+
+// selfCPU is the user plus system CPU time this process has used so far.
+// Outside -inprocess it is the load generator's: its connections, their
+// system calls and the check of every answer.
+func selfCPU() time.Duration {
+	var ru syscall.Rusage
+	if err := syscall.Getrusage(syscall.RUSAGE_SELF, &ru); err != nil {
+		return 0
+	}
+	return time.Duration(ru.Utime.Nano() + ru.Stime.Nano())
 }
 
 func netHTTPClient(tr *http.Transport, url string) func() ([]byte, error) {
