@@ -60,6 +60,7 @@ import (
 	"syscall"
 	"time"
 
+	"github.com/gin-gonic/gin"
 	"github.com/prometheus/client_golang/prometheus"
 	"github.com/prometheus/client_golang/prometheus/collectors"
 	"github.com/prometheus/client_golang/prometheus/promhttp"
@@ -92,6 +93,7 @@ type config struct {
 	memprofile  string
 	pprofAddr   string
 	keep        bool
+	floors      bool
 }
 
 func main() {
@@ -115,6 +117,7 @@ func main() {
 	flag.StringVar(&c.memprofile, "memprofile", "", "with -inprocess: write an allocation profile after that run")
 	flag.StringVar(&c.pprofAddr, "pprof-addr", "", "with -inprocess: serve net/http/pprof on this address, e.g. 127.0.0.1:6060")
 	flag.BoolVar(&c.keep, "keep", false, "keep the temporary directory (binary, logs)")
+	flag.BoolVar(&c.floors, "floors", false, "also measure two floors between bare and service: gin answering the bytes, and the service's router and middleware answering them")
 	flag.Parse()
 	if err := run(c); err != nil {
 		fmt.Fprintln(os.Stderr, "perf:", err)
@@ -160,16 +163,25 @@ func run(c config) error {
 	if err := os.WriteFile(bodyFile, body, 0o600); err != nil {
 		return err
 	}
-	bare, err := startBare(dir, bodyFile, ctype)
-	if err != nil {
-		return err
+	kinds := []string{"bare"}
+	if c.floors {
+		kinds = append(kinds, "gin", "middleware")
 	}
-	defer bare.stop()
-	if b2, ct2, err := fetch(bare.base + linearPath); err != nil {
-		return fmt.Errorf("bare server: %w", err)
-	} else if !bytes.Equal(b2, body) || ct2 != ctype {
-		return errors.New("bare server does not answer the service's bytes")
+	var others []*server
+	for _, kind := range kinds {
+		s, err := startBare(dir, kind, bodyFile, ctype)
+		if err != nil {
+			return err
+		}
+		defer s.stop()
+		if b2, ct2, err := fetch(s.base + s.path); err != nil {
+			return fmt.Errorf("%s server: %w", kind, err)
+		} else if !bytes.Equal(b2, body) || ct2 != ctype {
+			return fmt.Errorf("%s server does not answer the service's bytes", kind)
+		}
+		others = append(others, s)
 	}
+	bare := others[0]
 
 	fmt.Printf("thermal-movement service vs bare net/http, %s/%s, %d CPUs, GOMAXPROCS %d, %s\n",
 		runtime.GOOS, runtime.GOARCH, runtime.NumCPU(), runtime.GOMAXPROCS(0), runtime.Version())
@@ -181,7 +193,7 @@ func run(c config) error {
 	fmt.Printf("request: GET %s -> %d bytes, %s\n", linearPath, len(body), ctype)
 	fmt.Printf("rounds: %d x %s per server, alternating order, after %s warm-up each; load average before: %s\n\n", c.rounds, c.duration, c.warmup, loadAvg())
 
-	targets := []*server{svc, bare}
+	targets := append([]*server{svc}, others...)
 	if c.warmup > 0 {
 		for _, s := range targets {
 			if _, err := load(c, s, body, c.warmup); err != nil {
@@ -193,7 +205,8 @@ func run(c config) error {
 	for r := 0; r < c.rounds; r++ {
 		order := targets
 		if r%2 == 1 {
-			order = []*server{bare, svc}
+			order = slices.Clone(targets)
+			slices.Reverse(order)
 		}
 		for _, s := range order {
 			x, err := load(c, s, body, c.duration)
@@ -201,7 +214,7 @@ func run(c config) error {
 				return err
 			}
 			res[s] = append(res[s], x)
-			fmt.Printf("round %d  %-8s %9.0f req/s  p50 %8s  p99 %8s%s\n", r+1, s.name, x.rps, us(x.p50), us(x.p99), cpuNote(x.cpu, x.client))
+			fmt.Printf("round %d  %-10s %9.0f req/s  p50 %8s  p99 %8s%s\n", r+1, s.name, x.rps, us(x.p50), us(x.p99), cpuNote(x.cpu, x.client))
 		}
 	}
 	fmt.Println()
@@ -229,6 +242,14 @@ func run(c config) error {
 		fmt.Printf("NOISY: bare req/s varied %.2fx across rounds (over %.2fx): other work shared the machine; load average now %s; rerun on a quiet machine\n",
 			noise, maxNoise, loadAvg())
 	}
+	if len(others) > 1 {
+		fmt.Println("floors: the same bytes answered by gin alone, and by the service's router and middleware (request id, metrics,")
+		fmt.Println("  a no-op log, recovery, limits, load shedding, keys, ETag and caching headers) with no calculation:")
+	}
+	for _, s := range others[1:] {
+		f := summarise(res[s])
+		fmt.Printf("  %-10s median %9.0f req/s, ratio to bare %.3f, server CPU %.1f µs/req\n", s.name, f.rps, f.rps/b.rps, micros(medianOf(res[s], serverCPU)))
+	}
 
 	if c.inprocess && (c.cpuprofile != "" || c.memprofile != "") {
 		if err := profile(c, svc, body); err != nil {
@@ -255,6 +276,19 @@ func cpuNote(server, client time.Duration) string {
 	return fmt.Sprintf("  server CPU %5.1f µs/req  load generator CPU %5.1f µs/req", micros(server), micros(client))
 }
 
+func serverCPU(r result) time.Duration { return r.cpu }
+func clientCPU(r result) time.Duration { return r.client }
+
+// medianOf is the median of f over the runs rs.
+func medianOf(rs []result, f func(result) time.Duration) time.Duration {
+	x := make([]time.Duration, len(rs))
+	for i, r := range rs {
+		x[i] = f(r)
+	}
+	slices.Sort(x)
+	return median(x)
+}
+
 func micros(d time.Duration) float64 { return float64(d) / float64(time.Microsecond) }
 
 // cpuBudget explains the ratio by the CPU each request costs. Server and
@@ -264,17 +298,7 @@ func micros(d time.Duration) float64 { return float64(d) / float64(time.Microsec
 // its load generator). It prints the medians and the service CPU per
 // request at which the ratio would reach the target.
 func cpuBudget(svc, bare []result) {
-	med := func(rs []result, f func(result) time.Duration) time.Duration {
-		x := make([]time.Duration, len(rs))
-		for i, r := range rs {
-			x[i] = f(r)
-		}
-		slices.Sort(x)
-		return median(x)
-	}
-	server := func(r result) time.Duration { return r.cpu }
-	client := func(r result) time.Duration { return r.client }
-	s, sc, b, bc := med(svc, server), med(svc, client), med(bare, server), med(bare, client)
+	s, sc, b, bc := medianOf(svc, serverCPU), medianOf(svc, clientCPU), medianOf(bare, serverCPU), medianOf(bare, clientCPU)
 	if s <= 0 || b <= 0 {
 		return
 	}
@@ -311,6 +335,7 @@ func verdict(ok bool) string {
 // server is one target of the load.
 type server struct {
 	name string
+	path string // the request sent: linearPath, or a floor's own route
 	base string // http://127.0.0.1:port
 	addr string
 	cmd  *exec.Cmd    // a child process, or nil
@@ -409,8 +434,9 @@ func startService(dir string) (*server, error) {
 	return startChild("service", filepath.Join(dir, "service.log"), addr, bin, "--addr", addr)
 }
 
-// startBare runs this program again as the bare server.
-func startBare(dir, bodyFile, ctype string) (*server, error) {
+// startBare runs this program again as the bare server, or as one of the
+// floors (kind gin or middleware), each answering the service's bytes.
+func startBare(dir, kind, bodyFile, ctype string) (*server, error) {
 	self, err := os.Executable()
 	if err != nil {
 		return nil, err
@@ -419,8 +445,17 @@ func startBare(dir, bodyFile, ctype string) (*server, error) {
 	if err != nil {
 		return nil, err
 	}
-	return startChild("bare", filepath.Join(dir, "bare.log"), addr, self, "-serve-bare", addr, bodyFile, ctype)
+	s, err := startChild(kind, filepath.Join(dir, kind+".log"), addr, self, "-serve-bare", addr, bodyFile, ctype, kind)
+	if err == nil && kind == "middleware" {
+		s.path = floorPath
+	}
+	return s, err
 }
+
+// floorPath is the route of the middleware floor: the service's router
+// with one more route, under /v1/ as the calculations are, so that the
+// same middleware (the ETag and caching headers included) runs for it.
+const floorPath = "/v1/perf-floor?length=48%20m&alpha=12e-6/K&delta_t=50%20K"
 
 func startChild(name, logFile, addr, bin string, args ...string) (*server, error) {
 	lf, err := os.Create(logFile)
@@ -435,7 +470,7 @@ func startChild(name, logFile, addr, bin string, args ...string) (*server, error
 	}
 	done := make(chan struct{})
 	go func() { _ = cmd.Wait(); lf.Close(); close(done) }()
-	s := &server{name: name, addr: addr, base: "http://" + addr, cmd: cmd}
+	s := &server{name: name, path: linearPath, addr: addr, base: "http://" + addr, cmd: cmd}
 	s.stop = func() {
 		_ = cmd.Process.Signal(syscall.SIGTERM)
 		select {
@@ -473,6 +508,17 @@ func waitReady(url string, exited <-chan struct{}) error {
 	return errors.New("timed out")
 }
 
+// newHandler is the service's handler with cmd/api's default options.
+func newHandler(log *zap.Logger, reg *prometheus.Registry) (*handlers.Handler, error) {
+	cat, err := materials.Load()
+	if err != nil {
+		return nil, err
+	}
+	return handlers.New(log, reg, cat, handlers.Options{Version: "perf", Commit: "perf", MaxBodyBytes: 64 << 10,
+		Metrics: promhttp.HandlerFor(reg, promhttp.HandlerOpts{Registry: reg}), MaxInFlight: 256,
+		BatchMaxRows: 100000, BatchMaxBytes: 32 << 20})
+}
+
 // startInProcess serves handlers.New(...).Router() as cmd/api does, with
 // the same logger, registry and server timeouts.
 func startInProcess(dir, pprofAddr string) (*server, error) {
@@ -481,16 +527,12 @@ func startInProcess(dir, pprofAddr string) (*server, error) {
 		return nil, err
 	}
 	enc := zapcore.NewJSONEncoder(zap.NewProductionConfig().EncoderConfig)
-	log := zap.New(zapcore.NewCore(enc, zapcore.Lock(zapcore.AddSync(lf)), zapcore.InfoLevel))
-	cat, err := materials.Load()
-	if err != nil {
-		return nil, err
-	}
+	// Sampled as cmd/api samples by default (--log-sampling).
+	log := zap.New(zapcore.NewSamplerWithOptions(zapcore.NewCore(enc, zapcore.Lock(zapcore.AddSync(lf)), zapcore.InfoLevel),
+		time.Second, 100, 100))
 	reg := prometheus.NewRegistry()
 	reg.MustRegister(collectors.NewGoCollector(), collectors.NewProcessCollector(collectors.ProcessCollectorOpts{}))
-	h, err := handlers.New(log, reg, cat, handlers.Options{Version: "perf", Commit: "perf", MaxBodyBytes: 64 << 10,
-		Metrics: promhttp.HandlerFor(reg, promhttp.HandlerOpts{Registry: reg}), MaxInFlight: 256,
-		BatchMaxRows: 100000, BatchMaxBytes: 32 << 20})
+	h, err := newHandler(log, reg)
 	if err != nil {
 		return nil, err
 	}
@@ -547,27 +589,48 @@ func startInProcess(dir, pprofAddr string) (*server, error) {
 }
 
 // serveBare is the bare server: every request gets the same bytes.
-// Arguments: address, body file, content type.
+// Arguments: address, body file, content type, and the kind: bare (a
+// net/http handler), gin (a gin engine with the one route) or middleware
+// (the service's router and middleware with one more route, floorPath).
 func serveBare(args []string) error {
-	if len(args) != 3 {
-		return errors.New("want: -serve-bare addr bodyfile content-type")
+	if len(args) != 4 {
+		return errors.New("want: -serve-bare addr bodyfile content-type bare|gin|middleware")
 	}
 	body, err := os.ReadFile(args[1])
 	if err != nil {
 		return err
 	}
 	ctype := args[2]
+	var handler http.Handler
+	fixed := func(c *gin.Context) { c.Data(http.StatusOK, ctype, body) }
+	switch args[3] {
+	case "bare":
+		handler = http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
+			w.Header().Set("Content-Type", ctype)
+			_, _ = w.Write(body)
+		})
+	case "gin":
+		gin.SetMode(gin.ReleaseMode)
+		r := gin.New()
+		r.GET(strings.Split(linearPath, "?")[0], fixed)
+		r.GET("/readyz", fixed)
+		handler = r
+	case "middleware":
+		h, err := newHandler(zap.NewNop(), prometheus.NewRegistry())
+		if err != nil {
+			return err
+		}
+		r := h.Router()
+		r.GET(strings.Split(floorPath, "?")[0], fixed)
+		handler = r
+	default:
+		return fmt.Errorf("unknown kind %q", args[3])
+	}
 	ln, err := net.Listen("tcp", args[0])
 	if err != nil {
 		return err
 	}
-	srv := &http.Server{
-		Handler: http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
-			w.Header().Set("Content-Type", ctype)
-			_, _ = w.Write(body)
-		}),
-		ReadHeaderTimeout: 5 * time.Second,
-	}
+	srv := &http.Server{Handler: handler, ReadHeaderTimeout: 5 * time.Second}
 	go func() {
 		ch := make(chan os.Signal, 1)
 		signal.Notify(ch, syscall.SIGTERM, os.Interrupt)
@@ -629,9 +692,9 @@ func load(c config, s *server, want []byte, d time.Duration) (result, error) {
 			l := make([]time.Duration, 0, 1<<14)
 			var do func() ([]byte, error)
 			if tr != nil {
-				do = netHTTPClient(tr, s.base+linearPath)
+				do = netHTTPClient(tr, s.base+s.path)
 			} else {
-				rc := &rawClient{addr: s.addr, req: []byte("GET " + linearPath + " HTTP/1.1\r\nHost: " + s.addr + "\r\nUser-Agent: thermal-perf\r\n\r\n")}
+				rc := &rawClient{addr: s.addr, req: []byte("GET " + s.path + " HTTP/1.1\r\nHost: " + s.addr + "\r\nUser-Agent: thermal-perf\r\n\r\n")}
 				defer rc.close()
 				do = rc.do
 			}
