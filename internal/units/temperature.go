@@ -113,16 +113,19 @@ func AppendNumber(dst []byte, v float64) []byte {
 	if v == 0 || math.IsNaN(v) || math.IsInf(v, 0) {
 		return append(dst, '0')
 	}
+	if v == math.Trunc(v) && math.Abs(v) < 1e12 {
+		// An integer of at most 12 digits is its own rounding.
+		return strconv.AppendInt(dst, int64(v), 10)
+	}
 	var buf [32]byte
-	e := strconv.AppendFloat(buf[:0], v, 'e', significant-1, 64) // -d.ddddddddddde±dd
+	// With 11 digits after the point the form is fixed: d.ddddddddddd
+	// (13 bytes), then e, the exponent's sign and its digits.
+	e := strconv.AppendFloat(buf[:0], v, 'e', significant-1, 64)
 	if e[0] == '-' {
 		dst = append(dst, '-')
 		e = e[1:]
 	}
-	mark := 0
-	for e[mark] != 'e' {
-		mark++
-	}
+	const mark = significant + 1
 	exp := 0
 	for _, c := range e[mark+2:] {
 		exp = exp*10 + int(c-'0')
@@ -132,13 +135,9 @@ func AppendNumber(dst []byte, v float64) []byte {
 	}
 	// The significant digits without the point, trailing zeros removed.
 	var digits [significant]byte
-	nd := 0
-	for _, c := range e[:mark] {
-		if c != '.' {
-			digits[nd] = c
-			nd++
-		}
-	}
+	digits[0] = e[0]
+	copy(digits[1:], e[2:mark])
+	nd := significant
 	for nd > 1 && digits[nd-1] == '0' {
 		nd--
 	}

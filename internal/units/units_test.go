@@ -790,10 +790,19 @@ func TestFormatNumber(t *testing.T) {
 // (independent cross-check: Go standard library strconv).
 func TestFormatNumberProperty(t *testing.T) {
 	r := rand.New(rand.NewPCG(1, 2))
-	for i := 0; i < 20000; i++ {
+	for i := 0; i < 30000; i++ {
 		v := (1 + 9*r.Float64()) * math.Pow(10, float64(r.IntN(61)-30))
+		switch i % 3 {
+		case 1: // a value typed with at most 12 digits, as inputs are
+			v, _ = strconv.ParseFloat(strconv.FormatFloat(v, 'e', r.IntN(12), 64), 64)
+		case 2: // an integer, up to well past 12 digits
+			v = math.Round(v * math.Pow(10, float64(r.IntN(14))))
+		}
 		if r.IntN(2) == 0 {
 			v = -v
+		}
+		if v == 0 {
+			continue
 		}
 		s := units.FormatNumber(v)
 		got, err := strconv.ParseFloat(s, 64)
