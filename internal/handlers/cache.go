@@ -17,10 +17,12 @@ import (
 // revalidation fetches the new answer.
 const cacheMaxAge = 300
 
-// The Cache-Control values of a calculation's GET.
+// The Cache-Control values of a calculation's GET, as header values made
+// once: the header map is only ever given a new value, never changed in
+// place, so every response can share them.
 var (
-	cachePublic  = "public, max-age=" + strconv.Itoa(cacheMaxAge)
-	cachePrivate = "private, max-age=" + strconv.Itoa(cacheMaxAge)
+	cachePublic  = []string{"public, max-age=" + strconv.Itoa(cacheMaxAge)}
+	cachePrivate = []string{"private, max-age=" + strconv.Itoa(cacheMaxAge)}
 )
 
 // cache sets Cache-Control and ETag on GET (and HEAD) requests of the /v1/ routes
@@ -43,7 +45,9 @@ func (h *Handler) cache(c *gin.Context) {
 		c.Next()
 		return
 	}
+	w := &cacheWriter{ResponseWriter: c.Writer, c: c}
 	tag := h.etag(c)
+	w.etag[0] = tag
 	cc := cachePublic
 	if h.opts.APIKeys != nil {
 		// A shared cache must not hand one key holder's answer to a
@@ -52,15 +56,15 @@ func (h *Handler) cache(c *gin.Context) {
 	}
 	// The keys are in canonical form: no canonicalisation per request.
 	hd := c.Writer.Header()
-	hd["Etag"] = []string{tag}
-	hd["Cache-Control"] = []string{cc}
+	hd["Etag"] = w.etag[:]
+	hd["Cache-Control"] = cc
 	if inm := c.Request.Header["If-None-Match"]; len(inm) > 0 && etagMatch(inm[0], tag) {
 		c.Writer.WriteHeader(http.StatusNotModified)
 		c.Writer.WriteHeaderNow()
 		c.Abort()
 		return
 	}
-	c.Writer = &cacheWriter{ResponseWriter: c.Writer, c: c}
+	c.Writer = w
 	c.Next()
 }
 
@@ -116,6 +120,7 @@ type cacheWriter struct {
 	gin.ResponseWriter
 	c    *gin.Context
 	done bool
+	etag [1]string // the ETag header's value, allocated with the writer
 }
 
 func (w *cacheWriter) fix(status int) {

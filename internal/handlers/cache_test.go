@@ -193,3 +193,42 @@ func TestHead(t *testing.T) {
 		t.Errorf("Allow %q, want GET, HEAD, POST", got)
 	}
 }
+
+// Every whole answer declares its length, small or large, for GET and
+// HEAD alike, and none is chunked: send sets Content-Length above 1 KiB
+// and leaves smaller answers to net/http, which adds it to an answer its
+// buffer holds when the handler returns (net/http ResponseWriter.Write
+// documentation; RFC 9110 8.6 for HEAD). Over a real connection, as in
+// production.
+func TestContentLength(t *testing.T) {
+	srv := httptest.NewServer(batchTestHandler(t, Options{Version: "1.0.0"}).Router())
+	defer srv.Close()
+	for _, target := range []string{
+		"/v1/expansion/linear?length=48%20m&alpha=12e-6/K&delta_t=50%20K",             // about 900 bytes
+		"/v1/expansion/linear?length=48%20m&alpha=12e-6/K&delta_t=50%20K&format=text", // a few bytes
+		"/v1/expansion/linear?length=x",                                               // a problem
+		"/v1/materials",                                                               // tens of kB
+		"/openapi.yaml",                                                               // over 100 kB
+	} {
+		get, err := http.Get(srv.URL + target)
+		if err != nil {
+			t.Fatal(err)
+		}
+		body, _ := io.ReadAll(get.Body)
+		get.Body.Close()
+		head, err := http.Head(srv.URL + target)
+		if err != nil {
+			t.Fatal(err)
+		}
+		head.Body.Close()
+		if get.ContentLength != int64(len(body)) || len(get.TransferEncoding) > 0 {
+			t.Errorf("GET %s: Content-Length %d, transfer encoding %q, for %d bytes", target, get.ContentLength, get.TransferEncoding, len(body))
+		}
+		if head.ContentLength != int64(len(body)) {
+			t.Errorf("HEAD %s: Content-Length %d, GET sends %d bytes", target, head.ContentLength, len(body))
+		}
+		if ct := get.Header.Get("Content-Type"); ct == "" || head.Header.Get("Content-Type") != ct {
+			t.Errorf("%s: Content-Type GET %q, HEAD %q", target, ct, head.Header.Get("Content-Type"))
+		}
+	}
+}

@@ -11,6 +11,7 @@ import (
 	"reflect"
 	"slices"
 	"sort"
+	"strconv"
 	"strings"
 	"sync"
 	"sync/atomic"
@@ -422,7 +423,7 @@ func (h *Handler) write(c *gin.Context, out *outputOptions, resp *Response, item
 			return buf
 		}
 		if body != nil {
-			c.Data(http.StatusOK, ct, body)
+			send(c, http.StatusOK, ct, body)
 			return buf
 		}
 	}
@@ -451,9 +452,57 @@ func (h *Handler) write(c *gin.Context, out *outputOptions, resp *Response, item
 			return buf
 		}
 	}
-	c.Data(http.StatusOK, contentTypes[out.format], body)
+	send(c, http.StatusOK, contentTypes[out.format], body)
 	return buf
 }
+
+// send writes a whole answer: the status, the Content-Type, and the
+// body. Content-Length is set here only for a body over 1 KiB: net/http
+// adds it itself to a smaller answer, which its buffer holds until the
+// handler returns (the ResponseWriter documentation). It is gin's c.Data
+// without the header values that call allocates each time.
+func send(c *gin.Context, status int, contentType string, body []byte) {
+	hd := c.Writer.Header()
+	hd["Content-Type"] = contentTypeHeader(contentType)
+	if len(body) > 1<<10 {
+		hd["Content-Length"] = []string{strconv.Itoa(len(body))}
+	}
+	c.Status(status)
+	_, _ = c.Writer.Write(body)
+}
+
+// sendJSON writes v as JSON, as gin's c.JSON does (encoding/json), with
+// its length declared.
+func sendJSON(c *gin.Context, status int, v any) {
+	body, err := json.Marshal(v)
+	if err != nil {
+		panic(err) // the recovery middleware answers 500; only our own types come here
+	}
+	send(c, status, contentTypes["json"], body)
+}
+
+// contentTypeHeaders are the Content-Type header values the service
+// sends, each made once. They are shared by every response: the header
+// map is only ever given a new value, never changed in place.
+var contentTypeHeaders = func() map[string][]string {
+	m := map[string][]string{problemContentType: {problemContentType}, yamlContentType: {yamlContentType}}
+	for _, ct := range contentTypes {
+		m[ct] = []string{ct}
+	}
+	return m
+}()
+
+func contentTypeHeader(ct string) []string {
+	if v, ok := contentTypeHeaders[ct]; ok {
+		return v
+	}
+	return []string{ct}
+}
+
+const (
+	problemContentType = "application/problem+json"
+	yamlContentType    = "application/yaml; charset=utf-8"
+)
 
 // problem writes err as RFC 9457 problem+json, or, where the caller asked
 // on_error=inline for a text, csv or xml answer, as a 200 "#ERROR:" line
@@ -466,11 +515,11 @@ func (h *Handler) problem(c *gin.Context, out *outputOptions, err error) {
 		h.log.Error("unexpected error", zap.Error(err), zap.String("request_id", pr.RequestID))
 	}
 	if out != nil && out.inline && out.format != "json" {
-		c.Data(http.StatusOK, contentTypes["text"], []byte("#ERROR: "+pr.Detail))
+		send(c, http.StatusOK, contentTypes["text"], []byte("#ERROR: "+pr.Detail))
 		return
 	}
 	body, _ := json.Marshal(pr)
 	c.Header("Cache-Control", "no-store")
-	c.Data(pr.Status, "application/problem+json", body)
+	send(c, pr.Status, problemContentType, body)
 	c.Abort()
 }

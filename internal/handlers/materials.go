@@ -79,7 +79,7 @@ func (h *Handler) listMaterials(c *gin.Context) {
 	for _, m := range h.cat.All() {
 		out.Materials = append(out.Materials, h.materialInfo(m))
 	}
-	c.JSON(http.StatusOK, out)
+	sendJSON(c, http.StatusOK, out)
 }
 
 // getMaterial godoc
@@ -97,7 +97,7 @@ func (h *Handler) getMaterial(c *gin.Context) {
 		h.problem(c, nil, newError(errNotFound, "no material with that id; GET /v1/materials lists the ids"))
 		return
 	}
-	c.JSON(http.StatusOK, h.materialInfo(m))
+	sendJSON(c, http.StatusOK, h.materialInfo(m))
 }
 
 func num(v float64) *Number {
@@ -157,7 +157,7 @@ type UnitList struct {
 //	@Success		200	{object}	UnitList
 //	@Router			/v1/units [get]
 func (h *Handler) listUnits(c *gin.Context) {
-	c.JSON(http.StatusOK, UnitList{Units: units.Symbols(), Notes: []string{
+	sendJSON(c, http.StatusOK, UnitList{Units: units.Symbols(), Notes: []string{
 		"Products, quotients and powers combine: N/mm2, um/(m*K), in/(in*degF), m^2, kg/m3; '.' and '*' multiply, '/' divides, left to right.",
 		"Fields named t_* are absolute temperatures (10 degF = 260.928 K); fields named delta_t* are temperature differences (10 degF = 5.5556 K). A coefficient per degF is per Fahrenheit interval.",
 		"Factors are exact where the definition is (NIST SP 811): 1 in = 0.0254 m, 1 lbf = 4.4482216152605 N, 1 degF interval = 5/9 K.",

@@ -25,7 +25,7 @@ type Status struct {
 //	@Success		200	{object}	Status
 //	@Router			/healthz [get]
 func (h *Handler) healthz(c *gin.Context) {
-	c.JSON(http.StatusOK, Status{Status: "ok"})
+	sendJSON(c, http.StatusOK, Status{Status: "ok"})
 }
 
 // readyz godoc
@@ -39,10 +39,10 @@ func (h *Handler) healthz(c *gin.Context) {
 //	@Router			/readyz [get]
 func (h *Handler) readyz(c *gin.Context) {
 	if !h.ready.Load() {
-		c.JSON(http.StatusServiceUnavailable, Status{Status: "draining"})
+		sendJSON(c, http.StatusServiceUnavailable, Status{Status: "draining"})
 		return
 	}
-	c.JSON(http.StatusOK, Status{Status: "ready"})
+	sendJSON(c, http.StatusOK, Status{Status: "ready"})
 }
 
 // openapi godoc
@@ -53,7 +53,7 @@ func (h *Handler) readyz(c *gin.Context) {
 //	@Success		200	{string}	string	"api/openapi.yaml"
 //	@Router			/openapi.yaml [get]
 func (h *Handler) openapi(c *gin.Context) {
-	c.Data(http.StatusOK, "application/yaml; charset=utf-8", api.Spec)
+	send(c, http.StatusOK, yamlContentType, api.Spec)
 }
 
 // docsRedirect godoc
@@ -119,7 +119,7 @@ func (h *Handler) problemType(c *gin.Context) {
 		h.problem(c, nil, newError(errNotFound, "no such problem type"))
 		return
 	}
-	c.Data(http.StatusOK, "text/plain; charset=utf-8", []byte(strings.TrimSpace(d)+"\n"))
+	send(c, http.StatusOK, contentTypes["text"], []byte(strings.TrimSpace(d)+"\n"))
 }
 
 // metricsDoc godoc
