@@ -217,8 +217,9 @@ func sharedHeaders(doc *openapi3.T) {
 			Description: desc, Schema: &openapi3.SchemaRef{Value: str("")}}}}
 	}
 	doc.Components.Headers = openapi3.Headers{
-		"X-Request-Id": header("The id under which the request was logged: the caller's own X-Request-Id when it is 1 to 128 " +
-			"characters of A-Z, a-z, 0-9 and - _ . :, otherwise one the service made."),
+		"X-Request-Id": header("The id under which the request is logged: the caller's own X-Request-Id when it is 1 to 128 " +
+			"characters of A-Z, a-z, 0-9 and - _ . :, otherwise one the service made. Failures of the service (5xx) are always " +
+			"logged; under load the lines of other requests are sampled (--log-sampling)."),
 		"ETag": header("On a 200 GET of /v1/: a strong tag of the answer, a hash of the method, the path, the query as sent " +
 			"(without api_key) and the service and materials versions. Send it back in If-None-Match."),
 		"Cache-Control": header("public, max-age=300 on a GET of /v1/ (private, max-age=300 when the deployment requires API " +
@@ -235,7 +236,7 @@ func sharedHeaders(doc *openapi3.T) {
 		doc.Components.Parameters = openapi3.ParametersMap{}
 	}
 	doc.Components.Parameters["X-Request-Id"] = &openapi3.ParameterRef{Value: &openapi3.Parameter{
-		Name: "X-Request-Id", In: "header", Description: "an id of the caller's own, logged with the request and echoed in the answer",
+		Name: "X-Request-Id", In: "header", Description: "an id of the caller's own, logged with the request (see the X-Request-Id response header) and echoed in the answer",
 		Schema: &openapi3.SchemaRef{Value: &openapi3.Schema{Type: &openapi3.Types{"string"}, MaxLength: uint64Ptr(128)}}}}
 	doc.Components.Parameters["If-None-Match"] = &openapi3.ParameterRef{Value: &openapi3.Parameter{
 		Name: "If-None-Match", In: "header", Description: "the ETag of an earlier answer: 304 Not Modified, no body, when it still holds",
