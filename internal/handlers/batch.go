@@ -665,6 +665,8 @@ func (r *batchRun) computeRow(c *computed, columns []string, p *params) string {
 		row.vals[k] = v
 	}
 	p.reset(row.vals, r.h.cat, &r.h.unitCache)
+	// A row writes no method or references: they need not be built.
+	p.brief = true
 	for _, f := range row.faults { // as calculation does: nothing is computed
 		p.invalid(f.Parameter, f.Detail)
 	}

@@ -76,6 +76,7 @@ func singleNumbers(t testing.TB, h http.Handler, calc string, params url.Values)
 			Value json.Number
 			Unit  string
 		}
+		Warnings []string
 	}
 	dec := json.NewDecoder(w.Body)
 	dec.UseNumber()
@@ -86,6 +87,7 @@ func singleNumbers(t testing.TB, h http.Handler, calc string, params url.Values)
 	for k, v := range body.Results {
 		out[k+" ["+v.Unit+"]"] = v.Value.String()
 	}
+	out["warnings"] = strings.Join(body.Warnings, "; ")
 	return out, ""
 }
 
@@ -128,7 +130,9 @@ func checkAgainstSingle(t *testing.T, h http.Handler, calc string, query url.Val
 		if got := rec[len(rec)-1]; got != detail {
 			t.Errorf("row %d error = %q, want the single request's %q", i+1, got, detail)
 		}
-		for c := nInputs; c < len(header)-3; c++ {
+		// The numbers and the warnings: a row is computed briefly (no
+		// method, no references), and must lose nothing else.
+		for c := nInputs; c < len(header)-2; c++ {
 			if rec[c] != want[header[c]] {
 				t.Errorf("row %d %s = %q, single request %q", i+1, header[c], rec[c], want[header[c]])
 			}
@@ -281,8 +285,12 @@ func TestBatchJSON(t *testing.T) {
 	// The same numbers as single requests, bit for bit.
 	want, _ := singleNumbers(t, r, "expansion/linear", url.Values{"length": {"48 m"}, "material": {"structural-steel"}, "t_initial": {"-15 degC"}, "t_final": {"35 degC"}})
 	for k, v := range want {
-		if got := rows[1][k]; got != json.Number(v) {
-			t.Errorf("row 2 %s = %v, single request %s", k, got, v)
+		var got any = json.Number(v)
+		if k == "warnings" {
+			got = v
+		}
+		if rows[1][k] != got {
+			t.Errorf("row 2 %s = %v, single request %s", k, rows[1][k], v)
 		}
 	}
 }
@@ -659,4 +667,52 @@ func BenchmarkBatchCSV(b *testing.B) {
 		}
 	}
 	b.ReportMetric(float64(rows)*float64(b.N)/b.Elapsed().Seconds(), "rows/s")
+}
+
+// A batch row is computed without its method and references
+// (params.brief) and keeps everything a row writes: the numbers and the
+// warnings of the single request, the coefficient's own warnings among
+// them. Demo data: a footbridge girder and its deck joint.
+func TestBatchRowsKeepWarnings(t *testing.T) {
+	r := batchTestHandler(t, Options{}).Router()
+	// An explicit alpha beside a material is used, with a warning; a
+	// delta_t beyond the range of steel's constant warns too.
+	body := "length,alpha,material,delta_t\n48 m,12e-6/K,structural-steel,50 K\n48 m,,structural-steel,1000 K\n"
+	w := post(t, r, "/v1/batch/expansion/linear", "text/csv", "", body)
+	recs := readCSV(t, w.Body.Bytes())
+	if w.Code != http.StatusOK || len(recs) != 3 {
+		t.Fatalf("status %d, %d records: %s", w.Code, len(recs), w.Body)
+	}
+	warnings := len(recs[0]) - 3
+	for i, rec := range recs[1:] {
+		if rec[warnings] == "" {
+			t.Errorf("linear row %d has no warning: %q", i+1, rec)
+		}
+	}
+	checkAgainstSingle(t, r, "expansion/linear", url.Values{}, recs, 4)
+
+	// The joint closes before t_max (a failing check, with its warning),
+	// and its alpha is given beside the material.
+	const joint = "length=60+m&material=structural-steel&alpha=12e-6%2FK&t_install=15+degC&t_min=-20+degC&t_max=45+degC&gap_install=10+mm"
+	q, _ := url.ParseQuery(joint)
+	header := []string{"length", "material", "alpha", "t_install", "t_min", "t_max", "gap_install"}
+	var cells []string
+	for _, n := range header {
+		cells = append(cells, q.Get(n))
+	}
+	w = post(t, r, "/v1/batch/joints/gap", "text/csv", "", strings.Join(header, ",")+"\n"+strings.Join(cells, ",")+"\n")
+	recs = readCSV(t, w.Body.Bytes())
+	if w.Code != http.StatusOK || len(recs) != 2 {
+		t.Fatalf("joints: status %d, %d records: %s", w.Code, len(recs), w.Body)
+	}
+	single := httptest.NewRecorder()
+	r.ServeHTTP(single, httptest.NewRequest(http.MethodGet, "/v1/joints/gap?"+joint, nil))
+	var want struct{ Warnings []string }
+	if err := json.Unmarshal(single.Body.Bytes(), &want); err != nil || single.Code != http.StatusOK {
+		t.Fatalf("single joint request: %d %s", single.Code, single.Body)
+	}
+	got := recs[1][len(recs[0])-3]
+	if got != strings.Join(want.Warnings, "; ") || !strings.Contains(got, "was given") || !strings.Contains(got, "fails") {
+		t.Errorf("joint row warnings %q, single request %q", got, want.Warnings)
+	}
 }

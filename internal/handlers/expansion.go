@@ -77,9 +77,11 @@ func (h *Handler) linear(p *params) (*Response, error) {
 			Strain:      si(r.Strain),
 			AlphaMean:   si(co.AlphaMean),
 		},
-		Method: linearMethod(co),
 	}
-	h.cite(resp, co)
+	if !p.brief {
+		resp.Method = linearMethod(co)
+	}
+	h.cite(p, resp, co)
 	return resp, nil
 }
 
@@ -90,15 +92,19 @@ func linearMethod(co coefficient) string {
 	return "dL = L0 e, e = (1 + e(t_final)) / (1 + e(t_initial)) - 1 from the total strain e(T) of the " + co.Kind + " data (" + co.from + "); alpha_mean = e / dT"
 }
 
-// cite adds the references and warnings of the coefficient used.
-func (h *Handler) cite(resp *Response, co coefficient) {
+// cite adds the warnings of the coefficient used and, but for a batch row
+// (p.brief), its references.
+func (h *Handler) cite(p *params, resp *Response, co coefficient) {
+	resp.Warnings = append(resp.Warnings, co.Warnings...)
+	if p.brief {
+		return
+	}
 	resp.References = slices.Grow(resp.References, 2+len(co.Source.Refs))
 	resp.References = append(resp.References, refASTME228)
 	if co.Kind != "constant" {
 		resp.References = append(resp.References, refASMEIID)
 	}
 	resp.References = append(resp.References, co.Source.Citations...)
-	resp.Warnings = append(resp.Warnings, co.Warnings...)
 }
 
 // AreaResults are the results of /v1/expansion/area.
@@ -208,22 +214,30 @@ func (h *Handler) area(p *params) (*Response, error) {
 		FinalArea:       si(r.FinalAreaM2),
 		DeltaAreaLinear: si(r.DeltaAreaLinearM2),
 	}
-	method := "A = A0 (1 + e_x)(1 + e_y), e = alpha dT for each in-plane direction (" + co.from + "); first order dA = A0 (e_x + e_y)"
 	switch {
 	case lengthM > 0:
 		res.FinalLength, res.FinalWidth = si(lengthM*(1+ex)), si(widthM*(1+ey))
 	case diameterM > 0:
 		res.FinalDiameter, res.DeltaDiameter = si(diameterM*(1+ex)), si(diameterM*ex)
-		if hole {
-			method += "; a hole grows as the material around it would, its diameter scaling by (1 + e)"
-		}
 	}
 	if !ortho {
 		res.AlphaMean = si(co.AlphaMean)
 	}
-	resp := &Response{Results: res, Method: method, References: []string{refIsotropic}}
-	h.cite(resp, co)
+	resp := &Response{Results: res}
+	if !p.brief {
+		resp.Method = areaMethod(co, lengthM <= 0 && diameterM > 0 && hole)
+		resp.References = []string{refIsotropic}
+	}
+	h.cite(p, resp, co)
 	return resp, nil
+}
+
+func areaMethod(co coefficient, hole bool) string {
+	m := "A = A0 (1 + e_x)(1 + e_y), e = alpha dT for each in-plane direction (" + co.from + "); first order dA = A0 (e_x + e_y)"
+	if hole {
+		m += "; a hole grows as the material around it would, its diameter scaling by (1 + e)"
+	}
+	return m
 }
 
 // VolumeResults are the results of /v1/expansion/volume.
@@ -334,16 +348,20 @@ func (h *Handler) volume(p *params) (*Response, error) {
 			} else {
 				res.BetaMean = si(0)
 			}
-			resp.Method = "V = V0 rho(t_initial) / rho(t_final), rho by Kell's (1975) equation for liquid water at 1 atm"
-			resp.References = append(resp.References, refKell1975)
+			if !p.brief {
+				resp.Method = "V = V0 rho(t_initial) / rho(t_final), rho by Kell's (1975) equation for liquid water at 1 atm"
+				resp.References = append(resp.References, refKell1975)
+			}
 			break
 		}
 		b := liquid.Beta
 		r, ok = calc.VolumeBeta(vol, b.Value, iv.dT), vok
 		res.BetaMean = si(b.Value)
 		p.inputs.addUsed("beta", b.Value, "1/K", "material "+liquid.ID)
-		resp.Method = "dV = beta V0 dT with the constant mean volumetric coefficient of " + liquid.ID
-		resp.References = append(resp.References, b.Citations...)
+		if !p.brief {
+			resp.Method = "dV = beta V0 dT with the constant mean volumetric coefficient of " + liquid.ID
+			resp.References = append(resp.References, b.Citations...)
+		}
 		if iv.absolute {
 			resp.Warnings = append(resp.Warnings, liquid.BetaWarnings(iv.t1, iv.t2)...)
 		}
@@ -357,9 +375,11 @@ func (h *Handler) volume(p *params) (*Response, error) {
 		if iv.dT != 0 {
 			res.BetaMean = si((r.FinalVolumeM3/vol - 1) / float64(iv.dT))
 		}
-		resp.Method = "V = V0 (1 + e)^3 for an isotropic solid, e = linear strain (" + co.from + "); first order dV = 3 e V0 (beta = 3 alpha)"
-		resp.References = append(resp.References, refIsotropic)
-		h.cite(resp, co)
+		if !p.brief {
+			resp.Method = "V = V0 (1 + e)^3 for an isotropic solid, e = linear strain (" + co.from + "); first order dV = 3 e V0 (beta = 3 alpha)"
+			resp.References = append(resp.References, refIsotropic)
+		}
+		h.cite(p, resp, co)
 	}
 
 	// The container.
@@ -376,8 +396,10 @@ func (h *Handler) volume(p *params) (*Response, error) {
 		if vcok && ok {
 			v := calc.InVessel(capacity, vco.Strain, r.FinalVolumeM3)
 			vessel = &v
-			resp.Method += "; vessel capacity C = C0 (1 + e_vessel)^3 (" + vco.from + "), net_overflow = V - C"
-			resp.References = append(resp.References, vco.Source.Citations...)
+			if !p.brief {
+				resp.Method += "; vessel capacity C = C0 (1 + e_vessel)^3 (" + vco.from + "), net_overflow = V - C"
+				resp.References = append(resp.References, vco.Source.Citations...)
+			}
 			resp.Warnings = append(resp.Warnings, vco.Warnings...)
 			if capacity < vol {
 				p.unprocessable("vessel_volume", "smaller than the liquid volume: the vessel overflows before heating")

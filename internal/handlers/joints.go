@@ -404,8 +404,11 @@ func (h *Handler) gap(p *params) (*Response, error) {
 		ext, comp := calc.SealantStrains(s.ClosingM, s.OpeningHighM, s.GapInstallM, in.tolerance)
 		res.SealantExtension, res.SealantCompression = si(ext), si(comp)
 	}
-	resp := &Response{Results: res, Method: gapMethod(in), Cautions: jointCautions}
-	h.citeJoint(resp, in)
+	resp := &Response{Results: res, Cautions: jointCautions}
+	if !p.brief {
+		resp.Method = gapMethod(in)
+	}
+	h.citeJoint(p, resp, in)
 	resp.Warnings = append(resp.Warnings, failedChecks(res.Checks, "")...)
 	if !in.hasInstall {
 		resp.Warnings = append(resp.Warnings, "no t_install: the installation may be at either extreme, so closing and opening are each the full movement range and the gaps are the conservative envelope; give t_install for the gaps of a known setting day")
@@ -434,13 +437,16 @@ func gapMethod(in jointInput) string {
 	return m
 }
 
-// citeJoint adds the references and warnings every joint response shares.
-func (h *Handler) citeJoint(resp *Response, in jointInput) {
-	resp.References = append(resp.References, refAASHTOMovement)
-	if in.hasSealant {
-		resp.References = append(resp.References, refASTMC1472, refASTMC920)
+// citeJoint adds the warnings every joint response shares and, but for a
+// batch row (p.brief), their references.
+func (h *Handler) citeJoint(p *params, resp *Response, in jointInput) {
+	if !p.brief {
+		resp.References = append(resp.References, refAASHTOMovement)
+		if in.hasSealant {
+			resp.References = append(resp.References, refASTMC1472, refASTMC920)
+		}
+		resp.References = append(resp.References, in.co.Source.Citations...)
 	}
-	resp.References = append(resp.References, in.co.Source.Citations...)
 	resp.Warnings = append(resp.Warnings, in.co.Warnings...)
 	if in.band != nil && !in.band.Alpha.HasBand {
 		resp.Warnings = append(resp.Warnings, "the catalogue gives no band for "+in.band.ID+": low and high bounds equal its design value")
@@ -597,7 +603,7 @@ func (h *Handler) schedule(p *params) (*Response, error) {
 		method += "; the reference gap_install at t_install shifted to each row by alpha L (t_install - t)"
 	}
 	resp := &Response{Results: res, Method: method, Cautions: jointCautions}
-	h.citeJoint(resp, in)
+	h.citeJoint(p, resp, in)
 	resp.Warnings = append(resp.Warnings, failedChecks(res.Checks, " in one or more rows of the table")...)
 	return resp, nil
 }

@@ -21,6 +21,10 @@ type params struct {
 	inputs Inputs
 	cat    *materials.Catalogue
 	unitsC *units.Cache // reads the quantities
+	// brief is set for a batch row, whose answer is its results, checks,
+	// warnings and cautions: a calculation may then leave out its method
+	// and references, which no batch writes, and save building them.
+	brief bool
 	// usedBuf and inputsBuf hold used and inputs for a typical request
 	// without further allocation.
 	usedBuf   [16]string
