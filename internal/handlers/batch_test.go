@@ -91,6 +91,18 @@ func singleNumbers(t testing.TB, h http.Handler, calc string, params url.Values)
 	return out, ""
 }
 
+// postCSVBatch posts a CSV batch of calc and returns its records, header
+// first, after checking the answer is a 200 with rows rows.
+func postCSVBatch(t *testing.T, h http.Handler, calc, body string, rows int) [][]string {
+	t.Helper()
+	w := post(t, h, "/v1/batch/"+calc, "text/csv", "", body)
+	recs := readCSV(t, w.Body.Bytes())
+	if w.Code != http.StatusOK || len(recs) != rows+1 {
+		t.Fatalf("batch %s: status %d, %d records, want %d rows: %s", calc, w.Code, len(recs), rows, w.Body)
+	}
+	return recs
+}
+
 func readCSV(t testing.TB, body []byte) [][]string {
 	t.Helper()
 	r := csv.NewReader(bytes.NewReader(body))
@@ -677,12 +689,7 @@ func TestBatchRowsKeepWarnings(t *testing.T) {
 	r := batchTestHandler(t, Options{}).Router()
 	// An explicit alpha beside a material is used, with a warning; a
 	// delta_t beyond the range of steel's constant warns too.
-	body := "length,alpha,material,delta_t\n48 m,12e-6/K,structural-steel,50 K\n48 m,,structural-steel,1000 K\n"
-	w := post(t, r, "/v1/batch/expansion/linear", "text/csv", "", body)
-	recs := readCSV(t, w.Body.Bytes())
-	if w.Code != http.StatusOK || len(recs) != 3 {
-		t.Fatalf("status %d, %d records: %s", w.Code, len(recs), w.Body)
-	}
+	recs := postCSVBatch(t, r, "expansion/linear", "length,alpha,material,delta_t\n48 m,12e-6/K,structural-steel,50 K\n48 m,,structural-steel,1000 K\n", 2)
 	warnings := len(recs[0]) - 3
 	for i, rec := range recs[1:] {
 		if rec[warnings] == "" {
@@ -700,11 +707,7 @@ func TestBatchRowsKeepWarnings(t *testing.T) {
 	for _, n := range header {
 		cells = append(cells, q.Get(n))
 	}
-	w = post(t, r, "/v1/batch/joints/gap", "text/csv", "", strings.Join(header, ",")+"\n"+strings.Join(cells, ",")+"\n")
-	recs = readCSV(t, w.Body.Bytes())
-	if w.Code != http.StatusOK || len(recs) != 2 {
-		t.Fatalf("joints: status %d, %d records: %s", w.Code, len(recs), w.Body)
-	}
+	recs = postCSVBatch(t, r, "joints/gap", strings.Join(header, ",")+"\n"+strings.Join(cells, ",")+"\n", 1)
 	single := httptest.NewRecorder()
 	r.ServeHTTP(single, httptest.NewRequest(http.MethodGet, "/v1/joints/gap?"+joint, nil))
 	var want struct{ Warnings []string }

@@ -146,12 +146,7 @@ func hasPrefixIn(list []string, prefix string) bool {
 // words of the single request (no physical value is checked here).
 func TestBatchRowNotFinite(t *testing.T) {
 	r := batchTestHandler(t, Options{}).Router()
-	body := "material,delta_t,length,radius_of_gyration,end_condition\nstructural-steel,40 K,5e-324 m,57 mm,pinned\n"
-	w := post(t, r, "/v1/batch/restraint", "text/csv", "", body)
-	recs := readCSV(t, w.Body.Bytes())
-	if w.Code != http.StatusOK || len(recs) != 2 {
-		t.Fatalf("status %d, %d records: %s", w.Code, len(recs), w.Body)
-	}
+	recs := postCSVBatch(t, r, "restraint", "material,delta_t,length,radius_of_gyration,end_condition\nstructural-steel,40 K,5e-324 m,57 mm,pinned\n", 1)
 	single := decodeProblem(t, do(t, r, http.MethodGet, "/v1/restraint?material=structural-steel&delta_t=40%20K&length=5e-324%20m&radius_of_gyration=57%20mm&end_condition=pinned", "", ""))
 	if got := recs[1][len(recs[1])-1]; got != single.Detail || !strings.Contains(got, "critical_stress") {
 		t.Errorf("row error %q, single request %q; want the same, naming critical_stress", got, single.Detail)
