@@ -684,7 +684,8 @@ func BenchmarkBatchCSV(b *testing.B) {
 // A batch row is computed without its method and references
 // (params.brief) and keeps everything a row writes: the numbers and the
 // warnings of the single request, the coefficient's own warnings among
-// them. Demo data: a footbridge girder and its deck joint.
+// them (no physical value is checked here). Demo data: a footbridge
+// girder and its deck joint.
 func TestBatchRowsKeepWarnings(t *testing.T) {
 	r := batchTestHandler(t, Options{}).Router()
 	// An explicit alpha beside a material is used, with a warning; a
