@@ -288,6 +288,7 @@ func TestBadConfigFailsAtStart(t *testing.T) {
 		{"zero timeout", []string{"--shutdown-timeout", "0s"}, nil, "--shutdown-timeout"},
 		{"bad env duration", nil, map[string]string{"SHUTDOWN_DELAY": "ten seconds"}, "SHUTDOWN_DELAY"},
 		{"bad env integer", nil, map[string]string{"MAX_IN_FLIGHT": "many"}, "MAX_IN_FLIGHT"},
+		{"bad env boolean", nil, map[string]string{"LOG_SAMPLING": "sometimes"}, "LOG_SAMPLING"},
 		{"negative in-flight bound", []string{"--max-in-flight", "-1"}, nil, "--max-in-flight"},
 		{"bad log level", []string{"--log-level", "loud"}, nil, "--log-level"},
 		{"address without port", []string{"--addr", "localhost"}, nil, "--addr"},
