@@ -583,7 +583,7 @@ func startInProcess(dir, pprofAddr string) (*server, error) {
 		}
 	}()
 	addr := ln.Addr().String()
-	return &server{name: "service", addr: addr, base: "http://" + addr, srv: srv, peak: peak.Load, stop: func() {
+	return &server{name: "service", path: linearPath, addr: addr, base: "http://" + addr, srv: srv, peak: peak.Load, stop: func() {
 		close(stopSampler)
 		ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
 		defer cancel()
