@@ -26,6 +26,7 @@ import (
 	"go.uber.org/zap/zapcore"
 
 	"github.com/thermalmovement/service/internal/handlers"
+	"github.com/thermalmovement/service/internal/logging"
 	"github.com/thermalmovement/service/internal/materials"
 )
 
@@ -141,7 +142,7 @@ func newFlagSet(c *config, getenv func(string) string, out io.Writer) (*flag.Fla
 	integer(&c.maxURLBytes, "max-url-bytes", 8<<10, "longest request URI (path and query), bytes; longer: 414")
 	integer(&c.maxBodyBytes, "max-body-bytes", 64<<10, "largest JSON body of a calculation, bytes")
 	str(&c.logLevel, "log-level", "info", "debug, info, warn or error")
-	boolean(&c.logSampling, "log-sampling", true, fmt.Sprintf("sample repeated log lines below warn as zap's production logger does: each second, the first %d lines of a level and message, then every %dth; false logs every line", logSampleFirst, logSampleThereafter))
+	boolean(&c.logSampling, "log-sampling", true, fmt.Sprintf("sample repeated log lines below warn as zap's production logger does: each second, the first %d lines of a level and message, then every %dth; false logs every line", logging.SampleFirst, logging.SampleThereafter))
 	str(&c.apiKeysFile, "api-keys-file", "", "file of accepted API keys as SHA-256 hashes with labels; empty: no keys required")
 	integer(&c.maxInFlight, "max-in-flight", 256, "requests served at once; beyond, 503 with Retry-After (0: no bound)")
 	integer(&c.batchMaxRows, "batch-max-rows", 100000, "rows of one batch request")
@@ -197,47 +198,6 @@ func (c config) check() error {
 	return errors.Join(errs...)
 }
 
-// The sampling figures of zap.NewProductionConfig.
-const (
-	logSampleFirst      = 100
-	logSampleThereafter = 100
-)
-
-// newLogger builds the JSON logger. Its lines are buffered and written at
-// least once a second (one write per line would cost a system call per
-// request); Stop flushes them at exit, and the lines that mark the life of
-// the process are synced at once.
-//
-// With sampling, each second the first logSampleFirst lines of a level and
-// message below warn are written, then every logSampleThereafter-th, as
-// zap's production logger samples: at the request rates of a design office
-// every request is logged, and under load the log costs little. Warnings
-// and errors (a 503, a 500 and its "unexpected error" line) are never
-// sampled, so the request id of a failed request is always in the log.
-// thermal_log_lines_dropped_total counts the lines left out; the request
-// metrics count every request either way.
-func newLogger(level zapcore.Level, sampling bool, out io.Writer, reg prometheus.Registerer) (*zap.Logger, *zapcore.BufferedWriteSyncer) {
-	ws := &zapcore.BufferedWriteSyncer{WS: zapcore.AddSync(out), Size: 256 << 10, FlushInterval: time.Second}
-	enc := zapcore.NewJSONEncoder(zap.NewProductionEncoderConfig())
-	dropped := prometheus.NewCounter(prometheus.CounterOpts{
-		Name: "thermal_log_lines_dropped_total",
-		Help: "Log lines below warn left out by sampling (--log-sampling); the request metrics still count every request.",
-	})
-	reg.MustRegister(dropped)
-	if !sampling {
-		return zap.New(zapcore.NewCore(enc, ws, level)), ws
-	}
-	below := zap.LevelEnablerFunc(func(l zapcore.Level) bool { return level.Enabled(l) && l < zapcore.WarnLevel })
-	above := zap.LevelEnablerFunc(func(l zapcore.Level) bool { return level.Enabled(l) && l >= zapcore.WarnLevel })
-	sampled := zapcore.NewSamplerWithOptions(zapcore.NewCore(enc, ws, below), time.Second, logSampleFirst, logSampleThereafter,
-		zapcore.SamplerHook(func(_ zapcore.Entry, d zapcore.SamplingDecision) {
-			if d&zapcore.LogDropped != 0 {
-				dropped.Inc()
-			}
-		}))
-	return zap.New(zapcore.NewTee(sampled, zapcore.NewCore(enc, ws, above))), ws
-}
-
 // checkAddr checks a listen address of the form host:port, the port a
 // number (0 picks a free one).
 func checkAddr(addr string) error {
@@ -290,7 +250,7 @@ func run(ctx context.Context, args []string, getenv func(string) string, stdout 
 	}
 	level, _ := zapcore.ParseLevel(cfg.logLevel)
 	reg := prometheus.NewRegistry()
-	log, logOut := newLogger(level, cfg.logSampling, stdout, reg)
+	log, logOut := logging.New(level, cfg.logSampling, stdout, reg)
 	defer func() { _ = logOut.Stop() }()
 
 	keys, err := loadAPIKeys(cfg.apiKeysFile)

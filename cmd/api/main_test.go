@@ -19,9 +19,6 @@ import (
 	"sync"
 	"testing"
 	"time"
-
-	"github.com/prometheus/client_golang/prometheus"
-	"go.uber.org/zap/zapcore"
 )
 
 // logBuffer collects the JSON log lines of run, safe for concurrent use.
@@ -438,47 +435,5 @@ func TestLogSampling(t *testing.T) {
 				t.Errorf("no sampling: %d request lines and %v dropped, want %d and 0", lines, dropped, n)
 			}
 		})
-	}
-}
-
-// TestLoggerSamplesBelowWarn: sampling leaves out repeated info lines but
-// never a warning or an error, whose request ids callers quote; the
-// counter counts exactly the lines left out. Without sampling every line
-// is written. 300 lines of each level take well under a second, so they
-// fall in one tick of the sampler.
-func TestLoggerSamplesBelowWarn(t *testing.T) {
-	const n = 300
-	for _, sampling := range []bool{true, false} {
-		var out logBuffer
-		reg := prometheus.NewRegistry()
-		log, ws := newLogger(zapcore.InfoLevel, sampling, &out, reg)
-		for range n {
-			log.Info("request")
-			log.Warn("request")
-			log.Error("unexpected error")
-		}
-		if err := ws.Stop(); err != nil {
-			t.Fatal(err)
-		}
-		count := func(level string) int { return strings.Count(out.String(), `{"level":"`+level+`",`) }
-		info, warn, errs := count("info"), count("warn"), count("error")
-		var dropped float64
-		mfs, err := reg.Gather()
-		if err != nil {
-			t.Fatal(err)
-		}
-		for _, mf := range mfs {
-			if mf.GetName() == "thermal_log_lines_dropped_total" {
-				dropped = mf.GetMetric()[0].GetCounter().GetValue()
-			}
-		}
-		wantInfo := n
-		if sampling {
-			wantInfo = logSampleFirst + (n-logSampleFirst)/logSampleThereafter
-		}
-		if info != wantInfo || warn != n || errs != n || info+int(dropped) != n {
-			t.Errorf("sampling %v: %d info, %d warn, %d error lines and %v dropped; want %d, %d, %d and %d",
-				sampling, info, warn, errs, dropped, wantInfo, n, n, n-wantInfo)
-		}
 	}
 }

@@ -9,13 +9,13 @@ import (
 	"net/url"
 	"reflect"
 	"testing"
-	"time"
 
 	"github.com/gin-gonic/gin"
 	"github.com/prometheus/client_golang/prometheus"
 	"go.uber.org/zap"
 	"go.uber.org/zap/zapcore"
 
+	"github.com/thermalmovement/service/internal/logging"
 	"github.com/thermalmovement/service/internal/materials"
 )
 
@@ -38,22 +38,20 @@ var benchBodies = map[string]string{
 	"volume": `{"volume": "2.5 m3", "material": "water", "t_initial": "10 degC", "t_final": "80 degC", "vessel_material": "structural-steel"}`,
 }
 
-// benchHandler returns handlers set up as cmd/api sets them up: a JSON
-// zap logger at info level, sampled (here writing to io.Discard), and a
-// fresh registry.
+// benchHandler returns handlers set up as cmd/api sets them up: its
+// logger (logging.New at info level, sampled, here writing to io.Discard)
+// and a fresh registry. At benchmark rates about one request in a hundred
+// writes its line; BenchmarkStages/log-line measures one line.
 func benchHandler(tb testing.TB) *Handler {
 	tb.Helper()
 	cat, err := materials.Load()
 	if err != nil {
 		tb.Fatal(err)
 	}
-	enc := zapcore.NewJSONEncoder(zap.NewProductionEncoderConfig())
-	// Sampled as cmd/api samples by default (--log-sampling): at benchmark
-	// rates about one request in a hundred writes its line.
-	// BenchmarkStages/log-line measures one line.
-	core := zapcore.NewCore(enc, zapcore.Lock(zapcore.AddSync(io.Discard)), zapcore.InfoLevel)
-	log := zap.New(zapcore.NewSamplerWithOptions(core, time.Second, 100, 100))
-	h, err := New(log, prometheus.NewRegistry(), cat, Options{Version: "bench", MaxBodyBytes: 64 << 10})
+	reg := prometheus.NewRegistry()
+	log, ws := logging.New(zapcore.InfoLevel, true, io.Discard, reg)
+	tb.Cleanup(func() { _ = ws.Stop() })
+	h, err := New(log, reg, cat, Options{Version: "bench", MaxBodyBytes: 64 << 10})
 	if err != nil {
 		tb.Fatal(err)
 	}

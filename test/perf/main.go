@@ -76,6 +76,7 @@ import (
 	"go.uber.org/zap/zapcore"
 
 	"github.com/thermalmovement/service/internal/handlers"
+	"github.com/thermalmovement/service/internal/logging"
 	"github.com/thermalmovement/service/internal/materials"
 )
 
@@ -535,11 +536,9 @@ func startInProcess(dir, pprofAddr string) (*server, error) {
 	if err != nil {
 		return nil, err
 	}
-	enc := zapcore.NewJSONEncoder(zap.NewProductionConfig().EncoderConfig)
-	// Sampled as cmd/api samples by default (--log-sampling).
-	log := zap.New(zapcore.NewSamplerWithOptions(zapcore.NewCore(enc, zapcore.Lock(zapcore.AddSync(lf)), zapcore.InfoLevel),
-		time.Second, 100, 100))
+	// The logger of cmd/api, sampled as it samples by default (--log-sampling).
 	reg := prometheus.NewRegistry()
+	log, logOut := logging.New(zapcore.InfoLevel, true, lf, reg)
 	reg.MustRegister(collectors.NewGoCollector(), collectors.NewProcessCollector(collectors.ProcessCollectorOpts{}))
 	h, err := newHandler(log, reg)
 	if err != nil {
@@ -592,7 +591,7 @@ func startInProcess(dir, pprofAddr string) (*server, error) {
 		if ps != nil {
 			_ = ps.Shutdown(ctx)
 		}
-		_ = log.Sync()
+		_ = logOut.Stop()
 		lf.Close()
 	}}, nil
 }
@@ -636,8 +635,9 @@ func serveBare(args []string) error {
 		handler = r
 	case "middleware":
 		// Logged as the service logs by default, sampled, to nowhere.
-		core := zapcore.NewCore(zapcore.NewJSONEncoder(zap.NewProductionEncoderConfig()), zapcore.AddSync(io.Discard), zapcore.InfoLevel)
-		h, err := newHandler(zap.New(zapcore.NewSamplerWithOptions(core, time.Second, 100, 100)), prometheus.NewRegistry())
+		reg := prometheus.NewRegistry()
+		log, _ := logging.New(zapcore.InfoLevel, true, io.Discard, reg)
+		h, err := newHandler(log, reg)
 		if err != nil {
 			return err
 		}
