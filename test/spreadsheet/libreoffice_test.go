@@ -171,6 +171,34 @@ func startService(t *testing.T) (*httptest.Server, *handlers.Handler) {
 // (below "results") as written, and its unit.
 func jsonResult(t *testing.T, rawURL string, path ...string) (string, string) {
 	t.Helper()
+	v, ok := jsonAt(t, rawURL, path...).(map[string]any)
+	if !ok {
+		t.Fatalf("%s: no result at %v", rawURL, path)
+	}
+	return v["value"].(json.Number).String(), v["unit"].(string)
+}
+
+// jsonCheck returns "pass" or "fail" for the named check of the JSON
+// answer to rawURL, as format=text&result=check_<name> answers it.
+func jsonCheck(t *testing.T, rawURL, name string) string {
+	t.Helper()
+	checks, _ := jsonAt(t, rawURL, "checks").([]any)
+	for _, c := range checks {
+		if m, ok := c.(map[string]any); ok && m["name"] == name {
+			if m["pass"] == true {
+				return "pass"
+			}
+			return "fail"
+		}
+	}
+	t.Fatalf("%s: no check %q", rawURL, name)
+	return ""
+}
+
+// jsonAt returns the member of the results of the JSON answer to rawURL
+// (without its format, result and on_error options) at path.
+func jsonAt(t *testing.T, rawURL string, path ...string) any {
+	t.Helper()
 	u, err := url.Parse(rawURL)
 	if err != nil {
 		t.Fatal(err)
@@ -210,11 +238,7 @@ func jsonResult(t *testing.T, rawURL string, path ...string) (string, string) {
 			cur = c[i]
 		}
 	}
-	v, ok := cur.(map[string]any)
-	if !ok {
-		t.Fatalf("%s: no result at %v", u, path)
-	}
-	return v["value"].(json.Number).String(), v["unit"].(string)
+	return cur
 }
 
 // sameBits reports whether a number LibreOffice holds is the float64 of
@@ -390,7 +414,7 @@ func TestDemoWorkbook(t *testing.T) {
 	cells = append(cells, cellIn{Cell: "B4", String: &key})
 	got := o.set(t, cells)
 
-	rows := 0
+	rows, checkRows := 0, 0
 	for r := 7; ; r++ {
 		req, ok := got[fmt.Sprintf("H%d", r)]
 		if !ok || req.Type != "formula" {
@@ -399,6 +423,13 @@ func TestDemoWorkbook(t *testing.T) {
 		rows++
 		result := got[fmt.Sprintf("D%d", r)].String
 		value := got[fmt.Sprintf("F%d", r)]
+		if name, ok := strings.CutPrefix(result, "check_"); ok {
+			checkRows++
+			if want := jsonCheck(t, req.String, name); value.String != want || value.Error != 0 {
+				t.Errorf("row %d (%s): Calc reads %q, JSON %s", r, got[fmt.Sprintf("A%d", r)].String, value.String, want)
+			}
+			continue
+		}
 		want, unit := jsonResult(t, req.String, result)
 		if !sameBits(value.Value, want) || value.Error != 0 {
 			t.Errorf("row %d (%s): Calc reads %v %q, JSON %s; answer %q", r, got[fmt.Sprintf("A%d", r)].String, value.Value, value.String, want, got[fmt.Sprintf("G%d", r)].String)
@@ -407,7 +438,7 @@ func TestDemoWorkbook(t *testing.T) {
 			t.Errorf("row %d: unit %q, JSON %q", r, u, unit)
 		}
 	}
-	if rows < 8 {
-		t.Errorf("%d request rows found in the workbook, want at least 8", rows)
+	if rows < 8 || checkRows < 2 {
+		t.Errorf("%d request rows, %d of them checks, found in the workbook; want at least 8 and 2", rows, checkRows)
 	}
 }

@@ -29,7 +29,8 @@ TITLE = ("Thermal movement service: demo workbook. DEMO DATA: a warehouse slab a
 
 # Item, calculation, parameters (a query string; spaces allowed), result,
 # unit (for text rows), and how the answer is read: "text" (format=text,
-# one bare number) or "xml" (format=xml read by FILTERXML).
+# one bare number, or pass/fail for a check_<name> result) or "xml"
+# (format=xml read by FILTERXML).
 ITEMS = [
     ("Slab bay, winter contraction (30 m, cast at 15 degC, -10 degC)", "expansion/linear",
      "length=30 m&material=concrete&t_initial=15 degC&t_final=-10 degC", "delta_length", "mm", "text"),
@@ -41,6 +42,15 @@ ITEMS = [
     ("Slab joint: widest gap, at -10 degC", "joints/gap",
      "length=30 m&material=concrete&t_min=-10 degC&t_max=45 degC&t_install=15 degC&min_gap=5 mm",
      "gap_at_t_min", "", "xml"),
+    ("Slab joint sealed with a 25 % movement-capability sealant: width to build", "joints/gap",
+     "length=30 m&material=concrete&t_min=-10 degC&t_max=45 degC&t_install=15 degC&movement_capability=25",
+     "gap_install", "mm", "text"),
+    ("That sealant in the width built: compression at 45 degC within capability (pass/fail)", "joints/gap",
+     "length=30 m&material=concrete&t_min=-10 degC&t_max=45 degC&t_install=15 degC&movement_capability=25",
+     "check_sealant_compression", "", "text"),
+    ("That sealant in a 14 mm joint: compression at 45 degC within capability (pass/fail)", "joints/gap",
+     "length=30 m&material=concrete&t_min=-10 degC&t_max=45 degC&t_install=15 degC&gap_install=14 mm"
+     "&movement_capability=25", "check_sealant_compression", "", "text"),
     ("Slab, 200 mm thick: largest contraction-joint spacing", "joints/spacing",
      "thickness=200 mm", "spacing_max", "m", "text"),
     ("Facade panel 2.4 m x 1.2 m aluminium, 20 to 70 degC: length", "expansion/area",
