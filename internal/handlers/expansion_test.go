@@ -84,6 +84,23 @@ func TestLinearCurves(t *testing.T) {
 	if len(d.Warnings) == 0 {
 		t.Error("extrapolated answer carries no warning")
 	}
+	// Concrete has a constant coefficient only (10e-6/K, from memory of
+	// EN 1992-1-1 3.1.3(5), over the catalogue's -30..60 degC): beyond it,
+	// the same 422, in every format; extrapolate=true computes
+	// 48 m x 10e-6 x 50 K = 24 mm with a warning.
+	for _, format := range []string{"json", "text"} {
+		w = do(t, r, "GET", "/v1/expansion/linear?"+q("length", "48 m", "material", "concrete", "t_initial", "20 degC", "t_final", "3000 degC", "format", format), "", "")
+		if w.Code != http.StatusUnprocessableEntity {
+			t.Fatalf("concrete to 3000 degC, format %s: status %d, want 422", format, w.Code)
+		}
+	}
+	if p := decodeProblem(t, w); len(p.Errors) != 1 || p.Errors[0].Parameter != "material" || !strings.Contains(p.Errors[0].Detail, "extrapolate=true") {
+		t.Errorf("problem names %+v, want material and the way out", p.Errors)
+	}
+	d = decode(t, do(t, r, "GET", "/v1/expansion/linear?"+q("length", "48 m", "material", "concrete", "t_initial", "20 degC", "t_final", "70 degC", "extrapolate", "true"), "", ""))
+	if got := d.Results["delta_length"].Value; !closeTo(got, 24, 1e-12) || len(d.Warnings) == 0 {
+		t.Errorf("concrete 20..70 degC extrapolated: delta_length %v mm, warnings %q; want 24 mm with a warning", got, d.Warnings)
+	}
 }
 
 func TestAreaHTTP(t *testing.T) {

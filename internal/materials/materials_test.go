@@ -193,6 +193,21 @@ func TestSelection(t *testing.T) {
 	if err != nil || len(e.Warnings) == 0 {
 		t.Errorf("extrapolated = %+v, %v; want a warning", e, err)
 	}
+	// A material with a constant coefficient only: its range is all its
+	// data, so beyond it the same rule holds. Concrete: 10e-6/K (from
+	// memory of EN 1992-1-1 3.1.3(5), not re-read) over the catalogue's
+	// -30..60 degC.
+	concrete, _ := c.Get("concrete")
+	if len(concrete.Curves) != 0 || !concrete.Alpha.HasRange {
+		t.Fatalf("concrete: want a ranged constant and no curve, got %d curves", len(concrete.Curves))
+	}
+	if _, err = concrete.Linear(units.Celsius(20), units.Celsius(3000), Auto, false); !errors.As(err, &oor) {
+		t.Errorf("concrete 20..3000 degC error = %v, want OutOfRangeError", err)
+	}
+	e, err = concrete.Linear(units.Celsius(20), units.Celsius(80), Auto, true)
+	if err != nil || e.Kind != "constant" || len(e.Warnings) == 0 || math.Abs(e.Strain-10e-6*60) > 1e-15 {
+		t.Errorf("concrete 20..80 degC extrapolated = %+v, %v; want the constant with a warning", e, err)
+	}
 	// Constant asked for outside its range: a warning, not an error.
 	e, err = steel.Linear(units.Celsius(20), units.Celsius(300), Constant, false)
 	if err != nil || e.Kind != "constant" || len(e.Warnings) == 0 {

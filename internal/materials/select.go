@@ -70,6 +70,12 @@ func (m *Material) Linear(t1, t2 units.Temperature, model Model, extrapolate boo
 		if constantInRange {
 			return m.constant(t2.Sub(t1)), nil
 		}
+		if model == Auto && !extrapolate {
+			// The constant's range is all the data there is.
+			return Expansion{}, &OutOfRangeError{Material: m.ID, Detail: fmt.Sprintf(
+				"the interval %s to %s is beyond the data of %s: its constant coefficient holds for %s, and it has no temperature-dependent curve; set extrapolate=true to extrapolate, or give alpha",
+				celsius(t1), celsius(t2), m.ID, span(m.Alpha.TMin, m.Alpha.TMax))}
+		}
 		return outside(), nil
 	}
 	if model == Auto && constantInRange {
