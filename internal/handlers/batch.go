@@ -790,6 +790,12 @@ func csvStop(err error, row *batchRow) error {
 		return io.EOF
 	case errors.As(err, &tl):
 		return &stopError{errTooLarge, tl.Error()}
+	case errors.As(err, &pe) && pe.Line > pe.StartLine:
+		// A quoted field ran over line ends: the lines it took (to the end
+		// of the body, when its quote is never closed) are no rows of the
+		// answer, so the batch cannot go on as if they were read.
+		return &stopError{errInvalid, "CSV line " + strconv.Itoa(pe.StartLine) + ": " + pe.Err.Error() +
+			", in a quoted field that runs on to line " + strconv.Itoa(pe.Line) + " (a quote not closed?)"}
 	case errors.As(err, &pe):
 		row.err = "CSV line " + strconv.Itoa(pe.StartLine) + ": " + pe.Err.Error()
 		return nil

@@ -491,6 +491,58 @@ func TestBatchLimitInBand(t *testing.T) {
 	}
 }
 
+// TestBatchCSVUnclosedQuote: a quote that is never closed takes every
+// line after it into one field, so those rows cannot be answered. The
+// batch stops there and says so, before the answer started (a 400) or
+// after it (a stop row and the trailer), rather than end "complete" with
+// rows missing. A stray quote within one line stays that row's error.
+func TestBatchCSVUnclosedQuote(t *testing.T) {
+	h := batchTestHandler(t, Options{BatchMaxRows: 100000, BatchMaxBytes: 1 << 20})
+	srv := httptest.NewServer(h.Router())
+	defer srv.Close()
+	post := func(body string) (*http.Response, []byte) {
+		t.Helper()
+		resp, err := http.Post(srv.URL+"/v1/batch/expansion/linear", "text/csv", strings.NewReader(body))
+		if err != nil {
+			t.Fatal(err)
+		}
+		defer resp.Body.Close()
+		out, err := io.ReadAll(resp.Body)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return resp, out
+	}
+	const head, good = "length,alpha,delta_t\n", "48 m,12e-6/K,50 K\n"
+
+	resp, out := post(head + good + `"48 m,12e-6/K,50 K` + "\n" + good + good)
+	if resp.StatusCode != http.StatusBadRequest || !strings.Contains(string(out), "CSV line 3") || !strings.Contains(string(out), "not closed") {
+		t.Errorf("unclosed quote in a short batch: %d %s; want 400 naming line 3", resp.StatusCode, out)
+	}
+
+	const rows = 5000 // the answer has started before the fault
+	resp, out = post(head + strings.Repeat(good, rows) + `"48 m,12e-6/K,50 K` + "\n" + strings.Repeat(good, 10))
+	recs := readCSV(t, out)
+	last := recs[len(recs)-1]
+	wantStop := "batch stopped after row 5000: CSV line 5002"
+	if resp.StatusCode != http.StatusOK || len(recs) != 1+rows+1 || !strings.HasPrefix(last[len(last)-1], wantStop) {
+		t.Errorf("unclosed quote after %d rows: status %d, %d records ending %q; want %d rows and a stop row %q",
+			rows, resp.StatusCode, len(recs), last[len(last)-1], rows, wantStop)
+	}
+	if got := resp.Trailer.Get(batchStatusTrailer); !strings.HasPrefix(got, "stopped after row 5000") {
+		t.Errorf("trailer %s = %q, want stopped after row 5000", batchStatusTrailer, got)
+	}
+
+	resp, out = post(head + `48 m,12e-6/K,50 "K"` + "\n" + good)
+	recs = readCSV(t, out)
+	if resp.StatusCode != http.StatusOK || len(recs) != 3 || recs[1][len(recs[1])-1] == "" || recs[2][3] != "28.8" {
+		t.Errorf("stray quote within a line: status %d, records %q; want its row's error and the next row answered", resp.StatusCode, recs)
+	}
+	if got := resp.Trailer.Get(batchStatusTrailer); got != "complete: 2 rows" {
+		t.Errorf("trailer %s = %q, want complete: 2 rows", batchStatusTrailer, got)
+	}
+}
+
 // rowSource is a CSV body of n rows made as it is read, so that the body
 // itself takes no memory.
 type rowSource struct {
