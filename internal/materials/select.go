@@ -129,7 +129,7 @@ func (m *Material) LinearDelta(dT units.TemperatureDifference) (Expansion, error
 		return Expansion{}, fmt.Errorf("%s is a liquid: it has a volumetric coefficient, not a linear one", m.ID)
 	}
 	e := m.constant(dT)
-	if a := m.Alpha; a.HasRange && math.Abs(float64(dT)) > float64(a.TMax.Sub(a.TMin)) {
+	if a := m.Alpha; a.HasRange && math.Abs(float64(dT)) > float64(a.TMax.Sub(a.TMin))+1e-9 { // within, as within() allows
 		// No interval of this size fits in the range, wherever it lies.
 		e.Warnings = append(e.Warnings, fmt.Sprintf("a change of %s K is wider than %s, the range the constant coefficient of %s holds for, so it cannot lie within it; the movement is extrapolated (give t_initial and t_final to have the interval checked)",
 			units.FormatNumber(math.Abs(float64(dT))), span(a.TMin, a.TMax), m.ID))

@@ -36,11 +36,20 @@ func Celsius(c float64) Temperature { return Temperature(c + float64(ZeroCelsius
 // single temperature symbol (K, degC, degF, degR and their spellings);
 // 10 degF is 260.928 K here. A result below 0 K is an error wrapping
 // ErrBelowZero.
+//
+// The kelvin value is rounded to the nanokelvin, far below any reading,
+// so that one temperature written on two scales is one number: -40 degF
+// and -40 degC, or 138.2 degF and 59 degC, would otherwise differ in the
+// last bit of the binary arithmetic and make a false movement of 1e-14
+// or fail an equality that holds.
 func (q Quantity) Temperature() (Temperature, error) {
 	if q.Unit.Dim != Temp || !q.Unit.scale {
 		return 0, dimError(q, Temp, "an absolute temperature")
 	}
 	k := (q.Value + q.Unit.Offset) * q.Unit.Factor
+	if math.Abs(k) < 1e12 {
+		k = math.Round(k*1e9) / 1e9
+	}
 	if k < 0 {
 		return 0, errorf(q.String(), ErrBelowZero, Quote(q.String())+" is below absolute zero")
 	}

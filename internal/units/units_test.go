@@ -554,6 +554,40 @@ func TestTemperature(t *testing.T) {
 	}
 }
 
+// TestTemperatureSameOnEveryScale: one temperature written on two scales
+// is one number, exactly, so that their difference is 0 and comparisons
+// hold. The pairs follow from T(K) = t(degC) + 273.15 = (t(degF) +
+// 459.67)/1.8 = T(degR)/1.8 (from memory of NIST SP 811, not re-read).
+func TestTemperatureSameOnEveryScale(t *testing.T) {
+	for _, pair := range [][]string{
+		{"-40 degC", "-40 degF"},
+		{"0 degC", "32 degF", "273.15 K", "491.67 degR"},
+		{"59 degC", "138.2 degF", "332.15 K"},
+		{"100 degC", "212 degF", "373.15 K", "671.67 degR"},
+		{"-17.5 degC", "0.5 degF"},
+		{"37 degC", "98.6 degF"},
+		{"-196 degC", "-320.8 degF", "77.15 K"},
+		{"1200 degC", "2192 degF"},
+	} {
+		var first units.Temperature
+		for i, s := range pair {
+			q, err := units.Parse(s)
+			if err != nil {
+				t.Fatalf("Parse(%q): %v", s, err)
+			}
+			k, err := q.Temperature()
+			if err != nil {
+				t.Fatalf("Parse(%q).Temperature(): %v", s, err)
+			}
+			if i == 0 {
+				first = k
+			} else if k != first || k.Sub(first) != 0 {
+				t.Errorf("Temperature(%q) = %v K, Temperature(%q) = %v K: want the same number", s, float64(k), pair[0], float64(first))
+			}
+		}
+	}
+}
+
 func TestTemperatureErrors(t *testing.T) {
 	cases := []struct {
 		in   string
