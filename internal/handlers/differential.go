@@ -358,7 +358,7 @@ type RestraintResults struct {
 // restraint godoc
 //
 //	@Summary		Stress and force in a restrained member; thermal buckling; gradient through the depth
-//	@Description	Free strain e = alpha dT; stress = -R E e (tension positive, so a heated restrained member is in compression, negative); force = stress x area. Degree of restraint R from restraint (0 free .. 1 rigid, default 1) or from support_stiffness k, N/m, of a spring at one end with the other end rigid: R = k / (k + E A / L) (needs area and length). Buckling (end_condition with radius_of_gyration, or second_moment and area, and length): the temperature rise at which R E A alpha dT reaches the Euler load pi^2 E I / (K L)^2, K = 1 pinned, 0.5 fixed, 0.7 fixed-pinned, 2 cantilever. A warning when the stress or the Euler stress exceeds the yield strength (yield_strength or the catalogue's). Gradient (delta_t_top, delta_t_bottom, depth): free curvature alpha (dT_top - dT_bottom)/depth, positive for a warmer top (the member hogs); uniform part the mean of the two; with second_moment the end moment E I kappa of a fixed-fixed member, positive when it compresses the top face. Demo example: a 168.3 x 7.1 mm steel pipe (A = 3600 mm2, r = 57 mm) held between anchors in a demo plant trench, guided every 6 m, warmed by 40 K.
+//	@Description	Free strain e = alpha dT; stress = -R E e (tension positive, so a heated restrained member is in compression, negative); force = stress x area. Degree of restraint R from restraint (0 free .. 1 rigid, default 1) or from support_stiffness k, N/m, of a spring at one end with the other end rigid: R = k / (k + E A / L) (needs area and length). Buckling (end_condition with radius_of_gyration, or second_moment and area, and length): the temperature rise at which R E A alpha dT reaches the Euler load pi^2 E I / (K L)^2, K = 1 pinned, 0.5 fixed, 0.7 fixed-pinned, 2 cantilever. A warning when the stress or the Euler stress exceeds the yield strength (yield_strength or the catalogue's), and when there is no strength to check the stress against (none given, none in the catalogue: concrete, masonry, glass). Gradient (delta_t_top, delta_t_bottom, depth): free curvature alpha (dT_top - dT_bottom)/depth, positive for a warmer top (the member hogs); uniform part the mean of the two; with second_moment the end moment E I kappa of a fixed-fixed member, positive when it compresses the top face. Demo example: a 168.3 x 7.1 mm steel pipe (A = 3600 mm2, r = 57 mm) held between anchors in a demo plant trench, guided every 6 m, warmed by 40 K.
 //	@Tags			restraint
 //	@Produce		json,plain,text/csv,application/xml
 //	@Param			alpha				query		string	false	"coefficient, e.g. 12e-6/K; wins over material"
@@ -556,6 +556,19 @@ func (h *Handler) restraint(p *params) (*Response, error) {
 		if s := math.Abs(st.StressPa); s > fy {
 			resp.Warnings = append(resp.Warnings, "the restrained stress "+mpa(s)+" exceeds the yield strength "+mpa(fy)+" ("+fyFrom+"): the member yields, the elastic stress and force are upper bounds, and an Euler buckling temperature overestimates the real one")
 		}
+	} else if st.StressPa != 0 {
+		// No capacity to compare with: an empty list of warnings must not
+		// read as a stress that is fine. Concrete, masonry and glass have no
+		// yield strength and crack in tension at a few MPa.
+		kind := "compression"
+		if st.StressPa > 0 {
+			kind = "tension"
+		}
+		none := "no material was named"
+		if m := peekMaterial(p, "material"); m != nil {
+			none = "the catalogue has none for " + m.ID
+		}
+		resp.Warnings = append(resp.Warnings, "the restrained stress "+mpa(math.Abs(st.StressPa))+" ("+kind+") is not checked against any strength: no yield_strength was given and "+none+"; compare it with the member's capacity (a brittle material such as concrete, masonry or glass cracks in tension at a few MPa)")
 	}
 
 	if buckling {

@@ -140,6 +140,42 @@ func TestRestraintHTTP(t *testing.T) {
 	}
 }
 
+// TestRestraintUncheckedStress: a stress with no strength to compare it
+// with says so, so that no warning does not read as "fine". Concrete in
+// the catalogue (10e-6/K and Ecm 33 GPa, from memory of EN 1992-1-1) has
+// no strength: cooled 40 K it is in tension at 33e9 x 10e-6 x 40 =
+// 13.2 MPa, far above the 2 to 4 MPa it cracks at (EN 1992-1-1 Table 3.1
+// fctm, from memory). Steel has its yield strength, and a given
+// yield_strength counts too.
+func TestRestraintUncheckedStress(t *testing.T) {
+	r := newTestHandler(t).Router()
+	const unchecked = "is not checked against any strength"
+	for _, tc := range []struct {
+		name  string
+		query string
+		want  string // in a warning; "" for none of this kind
+	}{
+		{"concrete in tension", q("material", "concrete", "delta_t", "-40 K"), "13.2 MPa (tension)"},
+		{"alpha and modulus only", q("alpha", "12e-6/K", "modulus", "210 GPa", "delta_t", "30 K"), "75.6 MPa (compression)"},
+		{"steel has a yield strength", q("material", "structural-steel", "delta_t", "30 K"), ""},
+		{"given yield strength", q("alpha", "12e-6/K", "modulus", "210 GPa", "delta_t", "30 K", "yield_strength", "355 MPa"), ""},
+		{"no restraint, no stress", q("material", "concrete", "delta_t", "-40 K", "restraint", "0"), ""},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			d := decode(t, do(t, r, "GET", "/v1/restraint?"+tc.query, "", ""))
+			var got string
+			for _, w := range d.Warnings {
+				if strings.Contains(w, unchecked) {
+					got = w
+				}
+			}
+			if (tc.want == "") != (got == "") || !strings.Contains(got, tc.want) {
+				t.Errorf("warnings %q; want one %q naming %q", d.Warnings, unchecked, tc.want)
+			}
+		})
+	}
+}
+
 func TestRestraintCautions(t *testing.T) {
 	r := newTestHandler(t).Router()
 	// A hot steel pipe, fully restrained: 210e9 x 12e-6 x 200 K = 504 MPa > 355 MPa
