@@ -682,7 +682,7 @@ func (r *batchRun) computeRow(c *computed, columns []string, p *params) string {
 	if !ok {
 		return problemOf(notFinite(resp, r.out, p), "").Detail // the words of the single request
 	}
-	c.warnings, c.checks, c.cautions = resp.Warnings, checksOf(resp.Results), resp.Cautions
+	c.warnings, c.checks, c.cautions = inputWarnings(p, resp.Warnings), checksOf(resp.Results), resp.Cautions
 	return ""
 }
 

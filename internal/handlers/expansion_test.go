@@ -257,3 +257,41 @@ func TestCurveModelWithExplicitAlphaWarns(t *testing.T) {
 	// 12e-6/K x 48 m x 50 K = 28.8 mm (dL = alpha L dT, ASTM E228 mean coefficient, from memory).
 	checkResult(t, d, "delta_length", 28.8, "mm", 1e-12, len(standingCautions))
 }
+
+// TestMixedTemperatureScales: t_* fields are absolute temperatures, and
+// "20 degC" beside "50 K" is most often a rise of 50 K written in the
+// wrong field. It is computed as written (50 K is -223.15 degC: T(K) =
+// t(degC) + 273.15, from memory of NIST SP 811, not re-read) and the
+// answer says so; scales that both have their zero elsewhere (degC,
+// degF) or one scale throughout raise nothing.
+func TestMixedTemperatureScales(t *testing.T) {
+	r := newTestHandler(t).Router()
+	const hint = "fields named t_* are absolute temperatures"
+	for _, tc := range []struct {
+		name, t1, t2 string
+		warn         bool
+	}{
+		{"degC then K", "20 degC", "50 K", true},
+		{"K then degC", "293.15 K", "50 degC", true},
+		{"degF then degR", "68 degF", "600 degR", true},
+		{"degC then degF", "20 degC", "100 degF", false},
+		{"kelvin throughout", "300 K", "350 K", false},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			d := decode(t, do(t, r, "GET", "/v1/expansion/linear?"+q("length", "48 m", "alpha", "12e-6/K", "t_initial", tc.t1, "t_final", tc.t2), "", ""))
+			got := len(d.Warnings) > 0 && strings.Contains(d.Warnings[0], hint)
+			if got != tc.warn {
+				t.Errorf("warnings %q; want the scale warning: %v", d.Warnings, tc.warn)
+			}
+		})
+	}
+	d := decode(t, do(t, r, "GET", "/v1/expansion/linear?"+q("length", "48 m", "alpha", "12e-6/K", "t_initial", "20 degC", "t_final", "50 K"), "", ""))
+	if !strings.Contains(d.Warnings[0], "50 K is -223.15 degC") {
+		t.Errorf("warning %q does not give 50 K in degC", d.Warnings[0])
+	}
+	// A joint whose t_max came out below t_min says what each one is.
+	w := do(t, r, "GET", "/v1/joints/gap?"+q("length", "60 m", "alpha", "12e-6/K", "t_min", "-36 degC", "t_max", "95 K", "t_install", "12 degC", "min_gap", "20 mm"), "", "")
+	if p := decodeProblem(t, w); w.Code != http.StatusUnprocessableEntity || len(p.Errors) == 0 || !strings.Contains(p.Errors[0].Detail, "t_max is -178.15 degC, t_min -36 degC") {
+		t.Errorf("joint with t_max 95 K: %d %+v; want 422 giving both in degC", w.Code, p.Errors)
+	}
+}

@@ -383,9 +383,19 @@ func (h *Handler) complete(resp *Response, name string, p *params) {
 	if resp.References == nil {
 		resp.References = []string{}
 	}
+	resp.Warnings = inputWarnings(p, resp.Warnings)
 	if resp.Warnings == nil {
 		resp.Warnings = []string{}
 	}
+}
+
+// inputWarnings puts the concerns of the inputs themselves (p.warnings)
+// before the calculation's own warnings.
+func inputWarnings(p *params, own []string) []string {
+	if len(p.warnings) == 0 {
+		return own
+	}
+	return append(p.warnings[:len(p.warnings):len(p.warnings)], own...)
 }
 
 // standingCautions go with every calculation.

@@ -152,6 +152,11 @@ type jointInput struct {
 }
 
 // readJoint reads the parameters every joint calculation shares.
+// celsiusText writes an absolute temperature in degC, to 0.01 K.
+func celsiusText(t units.Temperature) string {
+	return units.FormatNumber(math.Round(t.Celsius()*100)/100) + " degC"
+}
+
 func (p *params) readJoint() (jointInput, bool) {
 	var in jointInput
 	p.require("length")
@@ -162,7 +167,7 @@ func (p *params) readJoint() (jointInput, bool) {
 	tMax, ok2 := p.temperature("t_max")
 	tok := ok1 && ok2
 	if tok && !(tMin < tMax) {
-		p.unprocessable("t_max", "must be above t_min")
+		p.unprocessable("t_max", "must be above t_min: t_max is "+celsiusText(tMax)+", t_min "+celsiusText(tMin)+" (fields named t_* are absolute temperatures)")
 		tok = false
 	}
 	iv := interval{dT: tMax.Sub(tMin), t1: tMin, t2: tMax, absolute: true}

@@ -29,6 +29,19 @@ type params struct {
 	// without further allocation.
 	usedBuf   [16]string
 	inputsBuf [10]Input
+	// warnings are concerns of the inputs themselves, added to the
+	// answer's own (see temperature).
+	warnings []string
+	// temp0 is the first absolute temperature read (when hasTemp0), with
+	// its name and quantity, to tell a change of scale among them.
+	temp0    tempRead
+	hasTemp0 bool
+}
+
+type tempRead struct {
+	name string
+	q    units.Quantity
+	k    units.Temperature
 }
 
 func newParams(vals map[string]raw, cat *materials.Catalogue, uc *units.Cache) *params {
@@ -237,7 +250,38 @@ func (p *params) temperature(name string) (units.Temperature, bool) {
 		return 0, false
 	}
 	p.inputs.addQuantity(name, q)
+	p.checkScale(name, q, t)
 	return t, true
+}
+
+// checkScale warns when absolute temperatures come on two scales and one
+// of them starts at absolute zero (K, degR): "20 degC" then "50 K" is most
+// often a rise of 50 K meant, not -223.15 degC. It is computed as written.
+func (p *params) checkScale(name string, q units.Quantity, t units.Temperature) {
+	if !p.hasTemp0 {
+		p.temp0, p.hasTemp0 = tempRead{name: name, q: q, k: t}, true
+		return
+	}
+	f := &p.temp0
+	a, b := f.q.Unit, q.Unit
+	if a.Factor == b.Factor && a.Offset == b.Offset || (a.Offset != 0 && b.Offset != 0) {
+		return
+	}
+	absName, absQ, absK, other := name, q, t, f.q
+	if a.Offset == 0 {
+		absName, absQ, absK, other = f.name, f.q, f.k, q
+	}
+	p.warnings = append(p.warnings, absName+" is "+absQ.String()+" and "+f.nameOr(name, absName)+" is on another scale ("+other.Unit.Symbol+
+		"): fields named t_* are absolute temperatures, so "+absQ.String()+" is "+units.FormatNumber(math.Round(units.FromKelvin(absK, other.Unit)*100)/100)+" "+
+		other.Unit.Symbol+"; a change of temperature goes in a delta_t field")
+}
+
+// nameOr is the name of the two temperatures that is not absName.
+func (f *tempRead) nameOr(name, absName string) string {
+	if f.name == absName {
+		return name
+	}
+	return f.name
 }
 
 // difference reads an optional temperature difference (fields delta_t*).
