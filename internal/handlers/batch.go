@@ -731,6 +731,10 @@ func newCSVReader(body io.Reader, shared map[string]raw, fields []resultField) (
 	if err != nil {
 		return nil, readError(err, "the header row")
 	}
+	if len(rec) == 1 && strings.Contains(rec[0], ";") {
+		return nil, newError(errInvalid, "invalid CSV header row", FieldError{Parameter: "column 1",
+			Detail: "the header row is one column holding \";\": separate the columns with commas (a spreadsheet in a locale with decimal commas may save CSV with semicolons)"})
+	}
 	header := make([]string, len(rec))
 	var errs []FieldError
 	seen := map[string]bool{}

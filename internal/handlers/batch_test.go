@@ -543,6 +543,17 @@ func TestBatchCSVUnclosedQuote(t *testing.T) {
 	}
 }
 
+// TestBatchCSVSemicolons: a CSV saved with semicolons (spreadsheets in
+// locales with decimal commas do) is one column; the header row is
+// refused with the reason rather than every row failing.
+func TestBatchCSVSemicolons(t *testing.T) {
+	r := batchTestHandler(t, Options{}).Router()
+	w := do(t, r, "POST", "/v1/batch/expansion/linear", "text/csv", "length;alpha;delta_t\n48 m;12e-6/K;50 K\n")
+	if p := decodeProblem(t, w); w.Code != http.StatusBadRequest || len(p.Errors) != 1 || !strings.Contains(p.Errors[0].Detail, "separate the columns with commas") {
+		t.Errorf("semicolon CSV: %d %+v; want 400 naming the separator", w.Code, p.Errors)
+	}
+}
+
 // rowSource is a CSV body of n rows made as it is read, so that the body
 // itself takes no memory.
 type rowSource struct {

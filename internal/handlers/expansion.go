@@ -341,6 +341,9 @@ func (h *Handler) volume(p *params) (*Response, error) {
 				rho1, rho2 = calc.WaterDensityAnyT(iv.t1), calc.WaterDensityAnyT(iv.t2)
 				resp.Warnings = append(resp.Warnings, "extrapolated beyond 0..150 degC, the range of Kell's equation; water may freeze or boil there")
 			}
+			if hot := units.Celsius(100); iv.t1 > hot || iv.t2 > hot {
+				resp.Warnings = append(resp.Warnings, "the interval reaches above 100 degC, where water boils at atmospheric pressure: Kell's densities are of liquid water, so the answer holds for water kept liquid under pressure (its small compressibility neglected)")
+			}
 			r, ok = calc.VolumeDensity(vol, rho1, rho2), vok
 			res.DensityInitial, res.DensityFinal = si(rho1), si(rho2)
 			if iv.dT != 0 {

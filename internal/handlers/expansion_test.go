@@ -295,3 +295,24 @@ func TestMixedTemperatureScales(t *testing.T) {
 		t.Errorf("joint with t_max 95 K: %d %+v; want 422 giving both in degC", w.Code, p.Errors)
 	}
 }
+
+// TestWaterAboveBoiling: Kell's (1975) equation covers liquid water to
+// 150 degC at 1 atm (its title: "from 0 to 150 degC"); water at
+// atmospheric pressure boils at 100 degC (any steam table, from memory),
+// so above it the answer says it holds for pressurised water only.
+func TestWaterAboveBoiling(t *testing.T) {
+	r := newTestHandler(t).Router()
+	for _, tc := range []struct {
+		t2   string
+		warn bool
+	}{{"90 degC", false}, {"100 degC", false}, {"120 degC", true}} {
+		d := decode(t, do(t, r, "GET", "/v1/expansion/volume?"+q("volume", "1 m3", "material", "water", "t_initial", "20 degC", "t_final", tc.t2), "", ""))
+		got := false
+		for _, w := range d.Warnings {
+			got = got || strings.Contains(w, "boils at atmospheric pressure")
+		}
+		if got != tc.warn {
+			t.Errorf("water 20 degC to %s: warnings %q, want the boiling warning: %v", tc.t2, d.Warnings, tc.warn)
+		}
+	}
+}

@@ -339,11 +339,15 @@ func (in jointInput) checks(s calc.Setting) []Check {
 	if in.hasSealant {
 		ext, comp := calc.SealantStrains(s.ClosingM, s.OpeningHighM, s.GapInstallM, in.tolerance)
 		se, sc := in.sealant.Extension, in.sealant.Compression
+		width := "the width"
+		if in.tolerance > 0 { // calc.SealantStrains takes it off the width
+			width = "the width less construction_tolerance"
+		}
 		add("sealant_extension", ext <= se*(1+1e-9), func(func(float64) string) string {
-			return "extension at t_min is " + percent(ext) + " of the width, capability " + percent(se)
+			return "extension at t_min is " + percent(ext) + " of " + width + ", capability " + percent(se)
 		})
 		add("sealant_compression", comp <= sc*(1+1e-9), func(func(float64) string) string {
-			return "compression at t_max is " + percent(comp) + " of the width, capability " + percent(sc)
+			return "compression at t_max is " + percent(comp) + " of " + width + ", capability " + percent(sc)
 		})
 	}
 	return cs
