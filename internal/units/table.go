@@ -3,7 +3,6 @@ package units
 import (
 	"slices"
 	"sort"
-	"strconv"
 )
 
 // symbol is one entry of the unit table: the SI value of one unit, and
@@ -180,10 +179,13 @@ func listSymbols() []SymbolInfo {
 		if err != nil || seen[f] {
 			panic("units: common form " + f + " is not a new valid unit") // at start-up, and in the tests
 		}
-		// The factor to 15 digits: 1/degF is 1.8, not the 1.7999999999999998
-		// that dividing by the float64 of 5/9 gives.
-		factor, _ := strconv.ParseFloat(strconv.FormatFloat(u.Factor, 'g', 15, 64), 64)
-		out = append(out, SymbolInfo{Symbol: f, Dimension: u.Dim.String(), Factor: factor, Name: "compound of the symbols above"})
+		out = append(out, SymbolInfo{Symbol: f, Dimension: u.Dim.String(), Factor: u.Factor, Name: "a product or quotient of listed symbols"})
+	}
+	// The factors as every output writes numbers, to 12 significant
+	// digits: 1/degF is 1.8, not the 1.7999999999999998 that dividing by
+	// the float64 of 5/9 gives, and a decibar 0.1, not 0.09999999999999999.
+	for i := range out {
+		out[i].Factor = Round(out[i].Factor)
 	}
 	sort.Slice(out, func(i, j int) bool {
 		if out[i].Dimension != out[j].Dimension {

@@ -1168,3 +1168,29 @@ func BenchmarkAppendNumber(b *testing.B) {
 		buf = units.AppendNumber(buf[:0], 260.92777777777781)
 	}
 }
+
+// TestSymbolFactorsAsWritten: the list of units gives every factor as
+// every output writes numbers (12 significant digits), so that a decibar
+// reads 0.1 and a nanolitre 1e-12, not their float64 noise; the SI factors
+// themselves are NIST SP 811's (from memory, not re-read): 1 psi =
+// 6894.757 Pa to its 7 digits.
+func TestSymbolFactorsAsWritten(t *testing.T) {
+	want := map[string]float64{"dbar": 1e4, "ubar": 0.1, "nL": 1e-12, "1/degF": 1.8}
+	for _, s := range units.Symbols() {
+		if back, err := strconv.ParseFloat(units.FormatNumber(s.Factor), 64); err != nil || back != s.Factor {
+			t.Errorf("%s: si_factor %v is not its own 12-digit form %s", s.Symbol, s.Factor, units.FormatNumber(s.Factor))
+		}
+		if w, ok := want[s.Symbol]; ok {
+			if s.Factor != w {
+				t.Errorf("%s: si_factor %v, want %v", s.Symbol, s.Factor, w)
+			}
+			delete(want, s.Symbol)
+		}
+		if s.Symbol == "psi" && math.Abs(s.Factor-6894.757) > 0.0005 {
+			t.Errorf("psi: si_factor %v, want 6894.757 Pa", s.Factor)
+		}
+	}
+	if len(want) > 0 {
+		t.Errorf("symbols not listed: %v", want)
+	}
+}
