@@ -206,14 +206,14 @@ func (h *Handler) differential(p *params) (*Response, error) {
 		res.Curvature = si(kappa)
 		method = append(method, "bonded strip (beam theory, each layer at a uniform temperature): Timoshenko (1925) 1/rho = 6 (e_a - e_b)(1 + m)^2 / (h [3 (1 + m)^2 + (1 + m n)(m^2 + 1/(m n))]), m = t_b/t_a, n = E_b/E_a, h = t_a + t_b; positive curvature bows the strip with layer a on the convex face (it deflects towards the b face)")
 		resp.References = append(resp.References, refTimoshenko1925)
+		st := strip.Stresses(kappa)
+		res.StressAInterface, res.StressAOuter = si(st.AInterface), si(st.AOuter)
+		res.StressBInterface, res.StressBOuter = si(st.BInterface), si(st.BOuter)
+		method = append(method, "layer stresses at the centre of a long strip, tension positive: axial force per width P = (E_a t_a^3 + E_b t_b^3) kappa / (6 h) from Timoshenko's equilibrium P h/2 = (E1 I1 + E2 I2)/rho, plus each layer's bending stress E kappa y")
 		if kappa == 0 {
-			resp.Warnings = append(resp.Warnings, "the layers have no mismatch strain: the strip stays straight, so radius and deflections are not given")
+			resp.Warnings = append(resp.Warnings, "the layers have no mismatch strain: the strip stays straight and unstressed, so it has no radius")
 		} else {
 			res.Radius = si(1 / math.Abs(kappa))
-			st := strip.Stresses(kappa)
-			res.StressAInterface, res.StressAOuter = si(st.AInterface), si(st.AOuter)
-			res.StressBInterface, res.StressBOuter = si(st.BInterface), si(st.BOuter)
-			method = append(method, "layer stresses at the centre of a long strip, tension positive: axial force per width P = (E_a t_a^3 + E_b t_b^3) kappa / (6 h) from Timoshenko's equilibrium P h/2 = (E1 I1 + E2 I2)/rho, plus each layer's bending stress E kappa y")
 			resp.Cautions = append(resp.Cautions, "Layer stresses hold at the centre of a long strip; near its free ends the interface shear and peeling stresses concentrate, are not given here, and can debond the layers.")
 		}
 		if spanM > 0 {

@@ -268,3 +268,24 @@ func TestDifferentialPOSTEqualsGET(t *testing.T) {
 		t.Errorf("GET stress %v, POST %v", g, p)
 	}
 }
+
+// TestBilayerNoMismatch: equal layers heated alike stay straight and
+// unstressed (Timoshenko 1925: the curvature and the layer forces are
+// proportional to the mismatch strain, from memory). The stresses are 0,
+// so a spreadsheet cell asking for one gets 0, not a 422; only the radius
+// of a straight strip does not exist.
+func TestBilayerNoMismatch(t *testing.T) {
+	r := newTestHandler(t).Router()
+	base := []string{"length", "60 mm", "alpha_a", "18.5e-6/K", "alpha_b", "18.5e-6/K", "delta_t", "50 K",
+		"thickness_a", "0.5 mm", "thickness_b", "0.5 mm", "modulus_a", "170 GPa", "modulus_b", "170 GPa"}
+	for _, name := range []string{"stress_a_interface", "stress_a_outer", "stress_b_interface", "stress_b_outer", "curvature"} {
+		w := do(t, r, "GET", "/v1/differential?"+q(append(base, "format", "text", "result", name)...), "", "")
+		if w.Code != 200 || strings.TrimSpace(w.Body.String()) != "0" {
+			t.Errorf("%s: %d %q, want 200 and 0", name, w.Code, w.Body.String())
+		}
+	}
+	d := decode(t, do(t, r, "GET", "/v1/differential?"+q(base...), "", ""))
+	if _, ok := d.Results["radius"]; ok {
+		t.Errorf("a straight strip has a radius: %v", d.Results["radius"])
+	}
+}
