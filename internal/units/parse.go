@@ -93,7 +93,7 @@ func (q Quantity) String() string {
 //	number   = ["+" | "-"] (digits ["." [digits]] | "." digits) [("e" | "E") ["+" | "-"] digits]
 //	unit     = ["/"] term {("*" | "." | "·" | "/") term}
 //	term     = symbol [exponent] | "1" | "(" unit ")" [exponent]
-//	exponent = digits | "^" ["+" | "-"] digits | "²" | "³" | "⁴"
+//	exponent = digits | "-" digits | "^" ["+" | "-"] digits | "²" | "³" | "⁴"
 //	symbol   = an entry of the unit table, optionally after an SI prefix
 //
 // Multiplication and division associate to the left, so "um/m/K" is
@@ -485,6 +485,10 @@ func (p *unitParser) exponent() (int8, error) {
 		if p.i >= len(p.s) || !isDigit(p.s[p.i]) {
 			return 0, p.fail(ErrSyntax, "exponent without digits")
 		}
+	} else if p.s[p.i] == '-' && p.i+1 < len(p.s) && isDigit(p.s[p.i+1]) {
+		// UCUM writes a negative power straight after the symbol: K-1, m-2.
+		neg = true
+		p.i++
 	} else if !isDigit(p.s[p.i]) {
 		return 1, nil
 	}

@@ -3,6 +3,7 @@ package units
 import (
 	"math"
 	"strconv"
+	"strings"
 )
 
 // Temperature is an absolute (thermodynamic) temperature in kelvin.
@@ -88,6 +89,9 @@ func dimError(q Quantity, want Dim, what string) *Error {
 	msg := Quote(q.String()) + " is " + q.Unit.Dim.Article() + " " + q.Unit.Dim.String() + ", expected " + what
 	if ex != "" {
 		msg += " such as " + Quote(ex)
+	}
+	if sym := q.Unit.Symbol; strings.Contains(sym, "lb") && !strings.Contains(sym, "lbf") {
+		msg += `; "lb" is a pound of mass: write "lbf" for pound-force`
 	}
 	return errorf(q.String(), ErrDimension, msg)
 }

@@ -202,12 +202,12 @@ func TestParseSpellingsAgree(t *testing.T) {
 	groups := [][]string{
 		{"30 m", "30m", "  30 m ", "30 m ", "30 (m)", "3000 cm", "30000 mm"},
 		{"2 m^2", "2 m2", "2 m²", "2 m^+2", "2 m*m", "2 (m)2", "2 m.m", "2 m·m"},
-		{"1 um/(m*K)", "1 um/m/K", "1 µm/(m*K)", "1 μm/m/K", "1e-6/K", "1 ppm/K", "1 ppm/degC", "1 [ppm]/Cel", "1e-6 1/K", "1e-6 K^-1", "1 um/m/Cel"},
-		{"1 degF", "1 °F", "1 [degF]"},
-		{"1 degC", "1 °C", "1 Cel"},
+		{"1 um/(m*K)", "1 um/m/K", "1 µm/(m*K)", "1 μm/m/K", "1e-6/K", "1 ppm/K", "1 ppm/degC", "1 [ppm]/Cel", "1e-6 1/K", "1e-6 K^-1", "1 um/m/Cel", "1e-6 K-1", "1 um.m-1.K-1"},
+		{"1 degF", "1 °F", "1 [degF]", "1 ℉"},
+		{"1 degC", "1 °C", "1 Cel", "1 ℃"},
 		{"1 degR", "1 °R", "1 [degR]"},
 		{"1 in", "1 [in_i]"},
-		{"1 N/mm2", "1 MPa", "1 N/mm^2", "1 N/mm²", "1 N*mm^-2", "1 N/(mm*mm)"},
+		{"1 N/mm2", "1 MPa", "1 N/mm^2", "1 N/mm²", "1 N*mm^-2", "1 N/(mm*mm)", "1 N.mm-2"},
 	}
 	type view struct {
 		SI    float64
@@ -690,6 +690,8 @@ func TestInErrors(t *testing.T) {
 		{"30 m", units.Area, units.ErrDimension, []string{`"30 m"`, "length", "area", `"0.25 m2"`}},
 		{"20 degC", units.Length, units.ErrDimension, []string{`"20 degC"`}},
 		{"5 %", units.Length, units.ErrDimension, []string{`"5 %"`}},
+		// US practice writes lb for pound-force; the message says which is which.
+		{"285000 lb/in", units.Stiffness, units.ErrDimension, []string{`write "lbf" for pound-force`}},
 	}
 	for _, c := range cases {
 		t.Run(c.in, func(t *testing.T) {
@@ -1192,5 +1194,17 @@ func TestSymbolFactorsAsWritten(t *testing.T) {
 	}
 	if len(want) > 0 {
 		t.Errorf("symbols not listed: %v", want)
+	}
+}
+
+// TestOrdinalIndicatorHint: "º" (U+00BA, the ordinal indicator) looks
+// like the degree sign "°" (U+00B0) and is a common slip; the message
+// says so (Unicode character names, from memory of the Unicode charts).
+func TestOrdinalIndicatorHint(t *testing.T) {
+	for _, in := range []string{"20 ºC", "68 ºF"} {
+		_, err := units.Parse(in)
+		if !errors.Is(err, units.ErrUnknownUnit) || !strings.Contains(err.Error(), "ordinal indicator") {
+			t.Errorf("Parse(%q) = %v; want an unknown unit naming the ordinal indicator", in, err)
+		}
 	}
 }
