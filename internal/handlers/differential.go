@@ -402,7 +402,7 @@ func (h *Handler) restraint(p *params) (*Response, error) {
 		for _, n := range []string{"delta_t", "t_initial", "t_final"} {
 			if p.has(n) {
 				p.take(n)
-				p.unprocessable(n, "contradicts delta_t_top/delta_t_bottom: with a gradient the uniform change is their mean")
+				p.unprocessable(n, "contradicts a gradient (delta_t_top, delta_t_bottom and depth): with a gradient the uniform change is the mean of delta_t_top and delta_t_bottom")
 			}
 		}
 		var ok1, ok2, ok3 bool

@@ -327,3 +327,37 @@ func TestErrorsListBounded(t *testing.T) {
 		t.Errorf("problem of %d bytes", w.Body.Len())
 	}
 }
+
+// TestConflictsAreNotUnknown: a documented parameter that conflicts with
+// another, or waits on a missing one, is never called an unknown
+// parameter; the real fault is named instead.
+func TestConflictsAreNotUnknown(t *testing.T) {
+	r := newTestHandler(t).Router()
+	for _, tc := range []struct {
+		path, query, fault string
+	}{
+		{"/v1/expansion/volume", q("volume", "1 m3", "alpha", "12e-6/K", "beta", "36e-6/K", "delta_t", "10 K"), "beta"},
+		{"/v1/expansion/area", q("area", "1 m2", "material", "concrete", "alpha_x", "12e-6/K", "alpha_y", "12e-6/K", "delta_t", "10 K"), "alpha_x"},
+		{"/v1/temperatures/bridge", q("shade_t_min", "-20 degC", "shade_t_max", "35 degC", "deck_type", "2"), "method"},
+	} {
+		t.Run(tc.path, func(t *testing.T) {
+			w := do(t, r, "GET", tc.path+"?"+tc.query, "", "")
+			p := decodeProblem(t, w)
+			named := false
+			for _, e := range p.Errors {
+				if e.Detail == "unknown parameter" {
+					t.Errorf("%s called unknown: %+v", e.Parameter, p.Errors)
+				}
+				named = named || e.Parameter == tc.fault
+			}
+			if !named {
+				t.Errorf("errors %+v do not name %s", p.Errors, tc.fault)
+			}
+		})
+	}
+	// An invented parameter still is unknown.
+	w := do(t, r, "GET", "/v1/temperatures/bridge?"+q("method", "en1991-1-5", "shade_t_min", "-20 degC", "shade_t_max", "35 degC", "deck_type", "2", "bogus", "1"), "", "")
+	if p := decodeProblem(t, w); len(p.Errors) != 1 || p.Errors[0].Parameter != "bogus" || p.Errors[0].Detail != "unknown parameter" {
+		t.Errorf("bogus parameter: %+v", p.Errors)
+	}
+}

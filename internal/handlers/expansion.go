@@ -187,6 +187,8 @@ func (h *Handler) area(p *params) (*Response, error) {
 	if ortho {
 		if p.has("alpha") || p.has("material") {
 			p.unprocessable("alpha_x", "give alpha_x and alpha_y, or alpha or material, not both")
+			p.markUsed("alpha") // in conflict, not unknown
+			p.markUsed("material")
 		}
 		if p.has("diameter") {
 			p.unprocessable("alpha_x", "an orthotropic disc does not stay circular; give length and width")

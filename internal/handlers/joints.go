@@ -770,6 +770,11 @@ func (h *Handler) bridge(p *params) (*Response, error) {
 		misplaced(en, "en1991-1-5")
 		return h.bridgeAASHTO(p)
 	}
+	// No method, or an unknown one: the inputs of either are this route's,
+	// not unknown; the error on method says what is missing.
+	for _, n := range append(en, us...) {
+		p.markUsed(n)
+	}
 	return nil, p.failed()
 }
 

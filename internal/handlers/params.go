@@ -88,7 +88,8 @@ func (p *params) take(name string) (raw, bool) {
 
 // markUsed records that a parameter was read.
 func (p *params) markUsed(name string) {
-	if !p.isUsed(name) {
+	// Only names that were sent: done counts used against vals.
+	if p.has(name) && !p.isUsed(name) {
 		p.used = append(p.used, name)
 	}
 }
@@ -411,7 +412,9 @@ func (p *params) exclusive(names ...string) bool {
 	if len(given) > 1 {
 		for _, n := range given[1:] {
 			p.unprocessable(n, "contradicts "+given[0]+": give only one of "+strings.Join(names, ", "))
-			p.markUsed(n) // read, and contradicted: not unknown
+		}
+		for _, n := range given {
+			p.markUsed(n) // read, and in conflict: not unknown
 		}
 		return false
 	}
