@@ -103,6 +103,22 @@ func postCSVBatch(t *testing.T, h http.Handler, calc, body string, rows int) [][
 	return recs
 }
 
+// postOverHTTP posts body to url over a real connection and returns the
+// response, its body read to the end (and so its trailers).
+func postOverHTTP(t *testing.T, url, contentType string, body io.Reader) (*http.Response, []byte) {
+	t.Helper()
+	resp, err := http.Post(url, contentType, body)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer resp.Body.Close()
+	out, err := io.ReadAll(resp.Body)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return resp, out
+}
+
 func readCSV(t testing.TB, body []byte) [][]string {
 	t.Helper()
 	r := csv.NewReader(bytes.NewReader(body))
@@ -444,15 +460,7 @@ func TestBatchLimitInBand(t *testing.T) {
 				}
 				body.WriteString("]")
 			}
-			resp, err := http.Post(srv.URL+"/v1/batch/expansion/linear", ct, &body)
-			if err != nil {
-				t.Fatal(err)
-			}
-			defer resp.Body.Close()
-			out, err := io.ReadAll(resp.Body)
-			if err != nil {
-				t.Fatal(err)
-			}
+			resp, out := postOverHTTP(t, srv.URL+"/v1/batch/expansion/linear", ct, &body)
 			if resp.StatusCode != http.StatusOK {
 				t.Fatalf("status %d: %s", resp.StatusCode, out)
 			}
@@ -502,16 +510,7 @@ func TestBatchCSVUnclosedQuote(t *testing.T) {
 	defer srv.Close()
 	post := func(body string) (*http.Response, []byte) {
 		t.Helper()
-		resp, err := http.Post(srv.URL+"/v1/batch/expansion/linear", "text/csv", strings.NewReader(body))
-		if err != nil {
-			t.Fatal(err)
-		}
-		defer resp.Body.Close()
-		out, err := io.ReadAll(resp.Body)
-		if err != nil {
-			t.Fatal(err)
-		}
-		return resp, out
+		return postOverHTTP(t, srv.URL+"/v1/batch/expansion/linear", "text/csv", strings.NewReader(body))
 	}
 	const head, good = "length,alpha,delta_t\n", "48 m,12e-6/K,50 K\n"
 
