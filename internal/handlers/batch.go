@@ -799,7 +799,7 @@ func csvStop(err error, row *batchRow) error {
 		// of the body, when its quote is never closed) are no rows of the
 		// answer, so the batch cannot go on as if they were read.
 		return &stopError{errInvalid, "CSV line " + strconv.Itoa(pe.StartLine) + ": " + pe.Err.Error() +
-			", in a quoted field that runs on to line " + strconv.Itoa(pe.Line) + " (a quote not closed?)"}
+			"; a quoted field runs from that line to line " + strconv.Itoa(pe.Line) + ", so the lines between are no rows: check its quotes"}
 	case errors.As(err, &pe):
 		row.err = "CSV line " + strconv.Itoa(pe.StartLine) + ": " + pe.Err.Error()
 		return nil

@@ -515,7 +515,7 @@ func TestBatchCSVUnclosedQuote(t *testing.T) {
 	const head, good = "length,alpha,delta_t\n", "48 m,12e-6/K,50 K\n"
 
 	resp, out := post(head + good + `"48 m,12e-6/K,50 K` + "\n" + good + good)
-	if resp.StatusCode != http.StatusBadRequest || !strings.Contains(string(out), "CSV line 3") || !strings.Contains(string(out), "not closed") {
+	if resp.StatusCode != http.StatusBadRequest || !strings.Contains(string(out), "CSV line 3") || !strings.Contains(string(out), "check its quotes") {
 		t.Errorf("unclosed quote in a short batch: %d %s; want 400 naming line 3", resp.StatusCode, out)
 	}
 

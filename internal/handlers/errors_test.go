@@ -355,9 +355,19 @@ func TestConflictsAreNotUnknown(t *testing.T) {
 			}
 		})
 	}
-	// An invented parameter still is unknown.
+	// An invented parameter still is unknown, beside a conflict too: the
+	// names marked as in conflict must be ones that were sent (material is
+	// not), or the count of those read would cover an unread one.
 	w := do(t, r, "GET", "/v1/temperatures/bridge?"+q("method", "en1991-1-5", "shade_t_min", "-20 degC", "shade_t_max", "35 degC", "deck_type", "2", "bogus", "1"), "", "")
 	if p := decodeProblem(t, w); len(p.Errors) != 1 || p.Errors[0].Parameter != "bogus" || p.Errors[0].Detail != "unknown parameter" {
 		t.Errorf("bogus parameter: %+v", p.Errors)
+	}
+	w = do(t, r, "GET", "/v1/expansion/area?"+q("area", "1 m2", "alpha", "12e-6/K", "alpha_x", "12e-6/K", "alpha_y", "12e-6/K", "delta_t", "10 K", "bogus", "1"), "", "")
+	bogus := false
+	for _, e := range decodeProblem(t, w).Errors {
+		bogus = bogus || e.Parameter == "bogus" && e.Detail == "unknown parameter"
+	}
+	if !bogus {
+		t.Errorf("bogus beside a conflict is not reported: %s", w.Body)
 	}
 }

@@ -4,6 +4,7 @@ import (
 	"math"
 	"net/http"
 	"net/url"
+	"slices"
 	"strings"
 	"testing"
 )
@@ -276,6 +277,7 @@ func TestMixedTemperatureScales(t *testing.T) {
 		{"degF then degR", "68 degF", "600 degR", true},
 		{"degC then degF", "20 degC", "100 degF", false},
 		{"kelvin throughout", "300 K", "350 K", false},
+		{"K then degR, both from absolute zero", "300 K", "600 degR", false},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			d := decode(t, do(t, r, "GET", "/v1/expansion/linear?"+q("length", "48 m", "alpha", "12e-6/K", "t_initial", tc.t1, "t_final", tc.t2), "", ""))
@@ -288,6 +290,20 @@ func TestMixedTemperatureScales(t *testing.T) {
 	d := decode(t, do(t, r, "GET", "/v1/expansion/linear?"+q("length", "48 m", "alpha", "12e-6/K", "t_initial", "20 degC", "t_final", "50 K"), "", ""))
 	if !strings.Contains(d.Warnings[0], "50 K is -223.15 degC") {
 		t.Errorf("warning %q does not give 50 K in degC", d.Warnings[0])
+	}
+	// Told once, however many temperatures change scale: a joint reads
+	// three (NIST SP 811 conversions, from memory: 260 K is -13.15 degC,
+	// 285 K is 11.85 degC).
+	b := readJointBody(t, jointGet(t, r, "/v1/joints/gap", jq("length", "60 m", "alpha", "12e-6/K", "t_min", "260 K", "t_max", "40 degC", "t_install", "285 K", "min_gap", "20 mm")))
+	if n := strings.Count(strings.Join(b.Warnings, "\n"), hint); n != 1 {
+		t.Errorf("joint with two kelvin temperatures beside degC: %d scale warnings in %q, want 1", n, b.Warnings)
+	}
+	// A batch row carries the warning in its warnings column; the next row,
+	// on one scale, does not.
+	recs := postCSVBatch(t, r, "expansion/linear", "length,alpha,t_initial,t_final\n48 m,12e-6/K,20 degC,50 K\n48 m,12e-6/K,20 degC,50 degC\n", 2)
+	col := slices.Index(recs[0], "warnings")
+	if col < 0 || !strings.Contains(recs[1][col], hint) || recs[2][col] != "" {
+		t.Errorf("batch warnings column: %q and %q; want the scale warning on the first row only", recs[1][col], recs[2][col])
 	}
 	// A joint whose t_max came out below t_min says what each one is.
 	w := do(t, r, "GET", "/v1/joints/gap?"+q("length", "60 m", "alpha", "12e-6/K", "t_min", "-36 degC", "t_max", "95 K", "t_install", "12 degC", "min_gap", "20 mm"), "", "")

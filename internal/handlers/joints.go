@@ -151,12 +151,12 @@ type jointInput struct {
 	band       *materials.Material
 }
 
-// readJoint reads the parameters every joint calculation shares.
 // celsiusText writes an absolute temperature in degC, to 0.01 K.
 func celsiusText(t units.Temperature) string {
 	return units.FormatNumber(math.Round(t.Celsius()*100)/100) + " degC"
 }
 
+// readJoint reads the parameters every joint calculation shares.
 func (p *params) readJoint() (jointInput, bool) {
 	var in jointInput
 	p.require("length")

@@ -34,8 +34,9 @@ type params struct {
 	warnings []string
 	// temp0 is the first absolute temperature read (when hasTemp0), with
 	// its name and quantity, to tell a change of scale among them.
-	temp0    tempRead
-	hasTemp0 bool
+	temp0       tempRead
+	hasTemp0    bool
+	scaleWarned bool
 }
 
 type tempRead struct {
@@ -265,9 +266,12 @@ func (p *params) checkScale(name string, q units.Quantity, t units.Temperature) 
 	}
 	f := &p.temp0
 	a, b := f.q.Unit, q.Unit
-	if a.Factor == b.Factor && a.Offset == b.Offset || (a.Offset != 0 && b.Offset != 0) {
+	if (a.Offset == 0) == (b.Offset == 0) || p.scaleWarned {
+		// Both scales start at absolute zero (K, degR) or neither does
+		// (degC, degF); or this request was told once already.
 		return
 	}
+	p.scaleWarned = true
 	absName, absQ, absK, other := name, q, t, f.q
 	if a.Offset == 0 {
 		absName, absQ, absK, other = f.name, f.q, f.k, q

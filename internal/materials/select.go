@@ -73,7 +73,7 @@ func (m *Material) Linear(t1, t2 units.Temperature, model Model, extrapolate boo
 		if model == Auto && !extrapolate {
 			// The constant's range is all the data there is.
 			return Expansion{}, &OutOfRangeError{Material: m.ID, Detail: fmt.Sprintf(
-				"the interval %s to %s is beyond the data of %s: its constant coefficient holds for %s, and it has no temperature-dependent curve; set extrapolate=true to extrapolate, or give alpha",
+				"the interval %s to %s is beyond the data of %s: its constant coefficient holds for %s, and it has no temperature-dependent curve; set extrapolate=true to extrapolate, alpha_model=constant to use the constant coefficient with a warning, or give the coefficient",
 				celsius(t1), celsius(t2), m.ID, span(m.Alpha.TMin, m.Alpha.TMax))}
 		}
 		return outside(), nil
@@ -104,7 +104,7 @@ func (m *Material) Linear(t1, t2 units.Temperature, model Model, extrapolate boo
 	}
 	if !extrapolate {
 		return Expansion{}, &OutOfRangeError{Material: m.ID, Detail: fmt.Sprintf(
-			"the interval %s to %s is beyond the temperature-dependent data of %s (%s); set extrapolate=true to extrapolate, or give alpha",
+			"the interval %s to %s is beyond the temperature-dependent data of %s (%s); set extrapolate=true to extrapolate, alpha_model=constant to use the constant coefficient with a warning, or give the coefficient",
 			celsius(t1), celsius(t2), m.ID, ranges)}
 	}
 	best, cover := m.Curves[0], math.Inf(-1)

@@ -48,11 +48,14 @@ func (q Quantity) Temperature() (Temperature, error) {
 		return 0, dimError(q, Temp, "an absolute temperature")
 	}
 	k := (q.Value + q.Unit.Offset) * q.Unit.Factor
-	if math.Abs(k) < 1e12 {
-		k = math.Round(k*1e9) / 1e9
+	if k < 0 { // before the rounding, which would make -4e-10 K a -0
+		// The value in full: rounded to 12 digits, -273.1500000004 degC
+		// would read as absolute zero itself.
+		exact := strconv.FormatFloat(q.Value, 'g', -1, 64) + " " + q.Unit.Symbol
+		return 0, errorf(exact, ErrBelowZero, Quote(exact)+" is below absolute zero")
 	}
-	if k < 0 {
-		return 0, errorf(q.String(), ErrBelowZero, Quote(q.String())+" is below absolute zero")
+	if k < 1e12 {
+		k = math.Round(k*1e9) / 1e9 // at or above 0, as the test above leaves it
 	}
 	return Temperature(k), nil
 }
@@ -90,7 +93,7 @@ func dimError(q Quantity, want Dim, what string) *Error {
 	if ex != "" {
 		msg += " such as " + Quote(ex)
 	}
-	if sym := q.Unit.Symbol; strings.Contains(sym, "lb") && !strings.Contains(sym, "lbf") {
+	if sym := q.Unit.Symbol; want.T == -2 && strings.Contains(sym, "lb") && !strings.Contains(sym, "lbf") { // a force, stress or stiffness wanted
 		msg += `; "lb" is a pound of mass: write "lbf" for pound-force`
 	}
 	return errorf(q.String(), ErrDimension, msg)

@@ -598,6 +598,10 @@ func TestTemperatureErrors(t *testing.T) {
 		{"-300 degC", units.ErrBelowZero, `"-300 degC"`}, // -300 + 273.15 < 0: from memory of NIST SP 811, not re-read
 		{"-460 degF", units.ErrBelowZero, `"-460 degF"`}, // -460 + 459.67 < 0: from memory of NIST SP 811, not re-read
 		{"-0.01 degR", units.ErrBelowZero, `"-0.01 degR"`},
+		// Below zero by less than the nanokelvin the kelvin value is kept to:
+		// still below zero.
+		{"-4e-10 K", units.ErrBelowZero, `"-4e-10 K"`},
+		{"-273.1500000004 degC", units.ErrBelowZero, `"-273.1500000004 degC"`},
 		{"12e-6 1/K", units.ErrDimension, "20 degC"}, // package contract: a coefficient is not a temperature
 		{"2 1/degF", units.ErrDimension, "20 degC"},  // package contract: compound temperature units are intervals
 		{"5 m", units.ErrDimension, `"5 m"`},         // package contract: wrong dimension
