@@ -500,7 +500,9 @@ func TestBatchLimitInBand(t *testing.T) {
 }
 
 // TestBatchCSVUnclosedQuote: a quote that is never closed takes every
-// line after it into one field, so those rows cannot be answered. The
+// line after it into one field (RFC 4180 2.6: a quoted field may hold line
+// breaks), so those rows cannot be answered. It checks no physical value
+// beyond the 28.8 mm of TestLinearHTTP's girder. The
 // batch stops there and says so, before the answer started (a 400) or
 // after it (a stop row and the trailer), rather than end "complete" with
 // rows missing. A stray quote within one line stays that row's error.
@@ -543,8 +545,9 @@ func TestBatchCSVUnclosedQuote(t *testing.T) {
 }
 
 // TestBatchCSVSemicolons: a CSV saved with semicolons (spreadsheets in
-// locales with decimal commas do) is one column; the header row is
-// refused with the reason rather than every row failing.
+// locales with decimal commas do) is one column, since RFC 4180 separates
+// fields by commas; the header row is refused with the reason rather than
+// every row failing. It checks no physical value.
 func TestBatchCSVSemicolons(t *testing.T) {
 	r := batchTestHandler(t, Options{}).Router()
 	w := do(t, r, "POST", "/v1/batch/expansion/linear", "text/csv", "length;alpha;delta_t\n48 m;12e-6/K;50 K\n")
