@@ -95,15 +95,15 @@ func EN1991Bridge(shadeMin, shadeMax units.Temperature, deck DeckType, t0 units.
 	}
 	if !extrapolate {
 		if shadeMin < ShadeMinLow || shadeMin > ShadeMinHigh {
-			return BridgeTemperature{}, fmt.Errorf("minimum shade air temperature %s is %w (-50 to 0 degC)", degC(shadeMin), ErrOutsideFigure)
+			return BridgeTemperature{}, fmt.Errorf("minimum shade air temperature %s is %w (-50 to 0 degC)", units.CelsiusText(shadeMin), ErrOutsideFigure)
 		}
 		if shadeMax < ShadeMaxLow || shadeMax > ShadeMaxHigh {
-			return BridgeTemperature{}, fmt.Errorf("maximum shade air temperature %s is %w (+20 to +50 degC)", degC(shadeMax), ErrOutsideFigure)
+			return BridgeTemperature{}, fmt.Errorf("maximum shade air temperature %s is %w (+20 to +50 degC)", units.CelsiusText(shadeMax), ErrOutsideFigure)
 		}
 	}
 	b := BridgeTemperature{TeMin: shadeMin.Add(dMin), TeMax: shadeMax.Add(dMax), T0: t0}
 	if !(b.TeMin < t0 && t0 < b.TeMax) {
-		return BridgeTemperature{}, fmt.Errorf("calc: the initial temperature %s is not between Te,min %s and Te,max %s", degC(t0), degC(b.TeMin), degC(b.TeMax))
+		return BridgeTemperature{}, fmt.Errorf("calc: the initial temperature %s is not between Te,min %s and Te,max %s", units.CelsiusText(t0), units.CelsiusText(b.TeMin), units.CelsiusText(b.TeMax))
 	}
 	b.Contraction = t0.Sub(b.TeMin)
 	b.Expansion = b.TeMax.Sub(t0)
@@ -181,5 +181,3 @@ func ProcedureA(c Climate, m DeckMaterial) (tMin, tMax units.Temperature, err er
 // fahrenheit returns the absolute temperature of f degF, T(K) =
 // (f + 459.67) / 1.8 (NIST SP 811).
 func fahrenheit(f float64) units.Temperature { return units.Temperature((f + 459.67) / 1.8) }
-
-func degC(t units.Temperature) string { return units.FormatNumber(units.Round(t.Celsius())) + " degC" }

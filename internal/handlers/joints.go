@@ -151,11 +151,6 @@ type jointInput struct {
 	band       *materials.Material
 }
 
-// celsiusText writes an absolute temperature in degC, to 0.01 K.
-func celsiusText(t units.Temperature) string {
-	return units.FormatNumber(math.Round(t.Celsius()*100)/100) + " degC"
-}
-
 // readJoint reads the parameters every joint calculation shares.
 func (p *params) readJoint() (jointInput, bool) {
 	var in jointInput
@@ -167,7 +162,7 @@ func (p *params) readJoint() (jointInput, bool) {
 	tMax, ok2 := p.temperature("t_max")
 	tok := ok1 && ok2
 	if tok && !(tMin < tMax) {
-		p.unprocessable("t_max", "must be above t_min: t_max is "+celsiusText(tMax)+", t_min "+celsiusText(tMin)+" (fields named t_* are absolute temperatures)")
+		p.unprocessable("t_max", "must be above t_min: t_max is "+units.CelsiusText(tMax)+", t_min "+units.CelsiusText(tMin)+" (fields named t_* are absolute temperatures)")
 		tok = false
 	}
 	iv := interval{dT: tMax.Sub(tMin), t1: tMin, t2: tMax, absolute: true}

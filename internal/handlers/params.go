@@ -272,21 +272,15 @@ func (p *params) checkScale(name string, q units.Quantity, t units.Temperature) 
 		return
 	}
 	p.scaleWarned = true
-	absName, absQ, absK, other := name, q, t, f.q
+	// abs is the one on a scale from absolute zero, other the one not.
+	abs, other := tempRead{name: name, q: q, k: t}, *f
 	if a.Offset == 0 {
-		absName, absQ, absK, other = f.name, f.q, f.k, q
+		abs, other = other, abs
 	}
-	p.warnings = append(p.warnings, absName+" is "+absQ.String()+" and "+f.nameOr(name, absName)+" is on another scale ("+other.Unit.Symbol+
-		"): fields named t_* are absolute temperatures, so "+absQ.String()+" is "+units.FormatNumber(math.Round(units.FromKelvin(absK, other.Unit)*100)/100)+" "+
-		other.Unit.Symbol+"; a change of temperature goes in a delta_t field")
-}
-
-// nameOr is the name of the two temperatures that is not absName.
-func (f *tempRead) nameOr(name, absName string) string {
-	if f.name == absName {
-		return name
-	}
-	return f.name
+	sym := other.q.Unit.Symbol
+	p.warnings = append(p.warnings, abs.name+" is "+abs.q.String()+" and "+other.name+" is on another scale ("+sym+
+		"): fields named t_* are absolute temperatures, so "+abs.q.String()+" is "+
+		units.FormatNumber(math.Round(units.FromKelvin(abs.k, other.q.Unit)*100)/100)+" "+sym+"; a change of temperature goes in a delta_t field")
 }
 
 // difference reads an optional temperature difference (fields delta_t*).

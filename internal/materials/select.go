@@ -60,7 +60,7 @@ func (m *Material) Linear(t1, t2 units.Temperature, model Model, extrapolate boo
 	outside := func() Expansion {
 		e := m.constant(t2.Sub(t1))
 		e.Warnings = append(e.Warnings, fmt.Sprintf("the interval %s to %s lies outside %s, the range the constant coefficient of %s holds for; the movement is extrapolated",
-			celsius(t1), celsius(t2), span(m.Alpha.TMin, m.Alpha.TMax), m.ID))
+			units.CelsiusText(t1), units.CelsiusText(t2), span(m.Alpha.TMin, m.Alpha.TMax), m.ID))
 		return e
 	}
 	if model == CurveFit && len(m.Curves) == 0 {
@@ -74,7 +74,7 @@ func (m *Material) Linear(t1, t2 units.Temperature, model Model, extrapolate boo
 			// The constant's range is all the data there is.
 			return Expansion{}, &OutOfRangeError{Material: m.ID, Detail: fmt.Sprintf(
 				"the interval %s to %s is beyond the data of %s: its constant coefficient holds for %s, and it has no temperature-dependent curve; set extrapolate=true to extrapolate, alpha_model=constant to use the constant coefficient with a warning, or give the coefficient",
-				celsius(t1), celsius(t2), m.ID, span(m.Alpha.TMin, m.Alpha.TMax))}
+				units.CelsiusText(t1), units.CelsiusText(t2), m.ID, span(m.Alpha.TMin, m.Alpha.TMax))}
 		}
 		return outside(), nil
 	}
@@ -105,7 +105,7 @@ func (m *Material) Linear(t1, t2 units.Temperature, model Model, extrapolate boo
 	if !extrapolate {
 		return Expansion{}, &OutOfRangeError{Material: m.ID, Detail: fmt.Sprintf(
 			"the interval %s to %s is beyond the temperature-dependent data of %s (%s); set extrapolate=true to extrapolate, alpha_model=constant to use the constant coefficient with a warning, or give the coefficient",
-			celsius(t1), celsius(t2), m.ID, ranges)}
+			units.CelsiusText(t1), units.CelsiusText(t2), m.ID, ranges)}
 	}
 	best, cover := m.Curves[0], math.Inf(-1)
 	for _, c := range m.Curves {
@@ -117,7 +117,7 @@ func (m *Material) Linear(t1, t2 units.Temperature, model Model, extrapolate boo
 	e := m.curve(best, t1, t2)
 	blo, bhi := best.Range()
 	e.Warnings = append(e.Warnings, fmt.Sprintf("extrapolated: the interval %s to %s reaches beyond %s, the range of the %s data of %s",
-		celsius(t1), celsius(t2), span(blo, bhi), best.Kind, m.ID))
+		units.CelsiusText(t1), units.CelsiusText(t2), span(blo, bhi), best.Kind, m.ID))
 	return e, nil
 }
 
@@ -161,15 +161,11 @@ func (m *Material) BetaWarnings(t1, t2 units.Temperature) []string {
 		return nil
 	}
 	return []string{fmt.Sprintf("the interval %s to %s lies outside %s, the range the volumetric coefficient of %s holds for",
-		celsius(t1), celsius(t2), span(b.TMin, b.TMax), m.ID)}
+		units.CelsiusText(t1), units.CelsiusText(t2), span(b.TMin, b.TMax), m.ID)}
 }
 
 func within(t, lo, hi units.Temperature) bool { return t >= lo-1e-9 && t <= hi+1e-9 }
 
-func celsius(t units.Temperature) string {
-	return units.FormatNumber(math.Round(t.Celsius()*100)/100) + " degC"
-}
-
 func span(lo, hi units.Temperature) string {
-	return celsius(lo) + " to " + celsius(hi)
+	return units.CelsiusText(lo) + " to " + units.CelsiusText(hi)
 }

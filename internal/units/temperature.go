@@ -30,6 +30,12 @@ func (t Temperature) Add(d TemperatureDifference) Temperature {
 // Celsius returns t in degrees Celsius.
 func (t Temperature) Celsius() float64 { return float64(t) - float64(ZeroCelsius) }
 
+// CelsiusText writes t in degrees Celsius to 0.01 K, as messages quote
+// temperatures: "-223.15 degC".
+func CelsiusText(t Temperature) string {
+	return FormatNumber(math.Round(t.Celsius()*100)/100) + " degC"
+}
+
 // Celsius returns the absolute temperature of c degrees Celsius.
 func Celsius(c float64) Temperature { return Temperature(c + float64(ZeroCelsius)) }
 
