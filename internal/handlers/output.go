@@ -100,7 +100,7 @@ func (p *params) resultUnit(f resultField) (units.Unit, bool) {
 	if !ok {
 		return units.Unit{}, false
 	}
-	u, err := units.ParseUnit(s)
+	u, err := p.unitsC.ParseUnit(s) // through the cache of the quantities: requests repeat these too
 	if err != nil {
 		p.invalid(name, err.Error())
 		return units.Unit{}, false
