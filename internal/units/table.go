@@ -187,7 +187,7 @@ func listSymbols() []SymbolInfo {
 	}
 	// The factors as every output writes numbers, to 12 significant
 	// digits: 1/degF is 1.8, not the 1.7999999999999998 that dividing by
-	// the float64 of 5/9 gives, and a decibar 0.1, not 0.09999999999999999.
+	// the float64 of 5/9 gives, and a microbar 0.1 Pa, not 0.09999999999999999.
 	for i := range out {
 		out[i].Factor = Round(out[i].Factor)
 	}
