@@ -23,6 +23,13 @@
 // nothing, so that the share of the framework, of the middleware and of
 // the calculation work shows.
 //
+// With -work (by default 10us,20us) it also serves the bytes from bare
+// servers that first spend that much arithmetic per request (a busy loop
+// timed at their start-up). Their ratios to bare read the throughput
+// target as a budget: the work per request a server may add to the bare
+// one and keep the target ratio, and the work the service's ratio
+// matches.
+//
 // Every server is a separate process with the same GOMAXPROCS, and they
 // share the machine with the load generator, so the ratio follows their
 // CPU per request: the program prints each server's (from /proc) and the
@@ -104,6 +111,7 @@ type config struct {
 	pprofAddr   string
 	keep        bool
 	floors      bool
+	work        []time.Duration
 }
 
 func main() {
@@ -128,7 +136,19 @@ func main() {
 	flag.StringVar(&c.pprofAddr, "pprof-addr", "", "with -inprocess: serve net/http/pprof on this address, e.g. 127.0.0.1:6060")
 	flag.BoolVar(&c.keep, "keep", false, "keep the temporary directory (binary, logs)")
 	flag.BoolVar(&c.floors, "floors", false, "also measure two floors between bare and service: gin answering the bytes, and the service's router and middleware answering them")
+	work := flag.String("work", "10us,20us", "also measure the bare server spending these amounts of arithmetic per request before it answers (comma-separated; empty: none), to read the target as a CPU budget")
 	flag.Parse()
+	for _, f := range strings.Split(*work, ",") {
+		if f = strings.TrimSpace(f); f == "" {
+			continue
+		}
+		d, err := time.ParseDuration(f)
+		if err != nil || d <= 0 || d > 10*time.Millisecond {
+			fmt.Fprintf(os.Stderr, "perf: -work %q: want positive durations up to 10ms, e.g. 10us,20us\n", f)
+			os.Exit(2)
+		}
+		c.work = append(c.work, d)
+	}
 	if err := run(c); err != nil {
 		fmt.Fprintln(os.Stderr, "perf:", err)
 		os.Exit(1)
@@ -176,6 +196,9 @@ func run(c config) error {
 	kinds := []string{"bare"}
 	if c.floors {
 		kinds = append(kinds, "gin", "middleware")
+	}
+	for _, d := range c.work {
+		kinds = append(kinds, workKind+d.String())
 	}
 	var others []*server
 	for _, kind := range kinds {
@@ -252,13 +275,16 @@ func run(c config) error {
 		fmt.Printf("NOISY: bare req/s varied %.2fx across rounds (over %.2fx): other work shared the machine; load average now %s; rerun on a quiet machine\n",
 			noise, maxNoise, loadAvg())
 	}
-	if len(others) > 1 {
+	if c.floors {
 		fmt.Println("floors: the same bytes answered by gin alone, and by the service's router and middleware (request id, metrics,")
 		fmt.Println("  the sampled log, recovery, limits, load shedding, keys, ETag and caching headers) with no calculation:")
+		for _, s := range others[1:3] {
+			f := summarise(res[s])
+			fmt.Printf("  %-10s median %9.0f req/s, ratio to bare %.3f, server CPU %.1f µs/req\n", s.name, f.rps, f.rps/b.rps, micros(medianOf(res[s], serverCPU)))
+		}
 	}
-	for _, s := range others[1:] {
-		f := summarise(res[s])
-		fmt.Printf("  %-10s median %9.0f req/s, ratio to bare %.3f, server CPU %.1f µs/req\n", s.name, f.rps, f.rps/b.rps, micros(medianOf(res[s], serverCPU)))
+	if len(c.work) > 0 {
+		workBudget(res, others[len(others)-len(c.work):], c.work, b.rps, ratio)
 	}
 
 	if c.inprocess && (c.cpuprofile != "" || c.memprofile != "") {
@@ -462,6 +488,10 @@ func startBare(dir, kind, bodyFile, ctype string) (*server, error) {
 	return s, err
 }
 
+// workKind prefixes the kind of a bare server that spends a fixed amount
+// of arithmetic per request before it answers, e.g. "bare+10µs".
+const workKind = "bare+"
+
 // floorPath is the route of the middleware floor: the service's router
 // with one more route, under /v1/ as the calculations are, so that the
 // same middleware (the ETag and caching headers included) runs for it.
@@ -621,9 +651,21 @@ func serveBare(args []string) error {
 		c.Status(http.StatusOK)
 		_, _ = c.Writer.Write(body)
 	}
+	var spin int // busy-loop steps per request, for the work kinds
+	if d, ok := strings.CutPrefix(args[3], workKind); ok {
+		w, err := time.ParseDuration(d)
+		if err != nil {
+			return fmt.Errorf("kind %q: %w", args[3], err)
+		}
+		spin = int(w.Seconds() / secondsPerStep())
+		args[3] = "bare"
+	}
 	switch args[3] {
 	case "bare":
 		handler = http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
+			if spin > 0 {
+				busy(spin)
+			}
 			w.Header().Set("Content-Type", ctype)
 			_, _ = w.Write(body)
 		})

@@ -1,0 +1,66 @@
+package main
+
+import (
+	"fmt"
+	"sync/atomic"
+	"time"
+)
+
+// The work floors: the bare server spending a fixed amount of arithmetic
+// per request before it answers. Their ratios to bare turn the throughput
+// target into a budget of CPU per request, on this machine and at this
+// concurrency, for everything a server does beyond writing the bytes.
+
+// workSink keeps the busy loop's result alive, so that it is computed.
+var workSink atomic.Uint64
+
+// busy runs n steps of a dependent multiply-add chain: pure CPU, no
+// memory traffic, no system calls.
+func busy(n int) {
+	x := uint64(n)
+	for i := 0; i < n; i++ {
+		x = x*31 + uint64(i)
+	}
+	workSink.Add(x)
+}
+
+// secondsPerStep times busy at start-up: the fastest of seven runs of
+// about 4 ms each, the machine's speed when nothing else competes.
+func secondsPerStep() float64 {
+	const steps = 1 << 22
+	best := time.Duration(1 << 62)
+	for i := 0; i < 7; i++ {
+		t := time.Now()
+		busy(steps)
+		best = min(best, time.Since(t))
+	}
+	return best.Seconds() / steps
+}
+
+// workBudget prints the work floors' ratios to bare and reads them as a
+// budget. Server and load generator share the cores, so 1/ratio grows
+// about linearly with the CPU a server adds per request: the slope is
+// fitted through (0, 1) by least squares, and gives the work the target
+// ratio leaves, and the work at which the bare server would match the
+// service's ratio.
+func workBudget(res map[*server][]result, servers []*server, work []time.Duration, bareRPS, serviceRatio float64) {
+	fmt.Println("work floors: the bare server spending a fixed amount of arithmetic per request (a busy loop timed at its")
+	fmt.Println("  start-up) before it answers the same bytes:")
+	var num, den float64
+	for i, s := range servers {
+		f := summarise(res[s])
+		r := f.rps / bareRPS
+		w := micros(work[i])
+		num += w * (1/r - 1)
+		den += w * w
+		fmt.Printf("  %-10s median %9.0f req/s, ratio to bare %.3f, server CPU %.1f µs/req\n", s.name, f.rps, r, micros(medianOf(res[s], serverCPU)))
+	}
+	slope := num / den
+	if slope <= 0 {
+		fmt.Println("  the work did not slow the bare server measurably (other work on the machine?); rerun for a budget")
+		return
+	}
+	fmt.Printf("  read as a budget: the ratio %.2f leaves about %.0f µs of such work per request for all the service does\n", targetRatio, (1/targetRatio-1)/slope)
+	fmt.Printf("  beyond writing the bytes (router, middleware, calculation); at its ratio %.3f the service answers as the\n", serviceRatio)
+	fmt.Printf("  bare server doing about %.0f µs of it would\n", (1/serviceRatio-1)/slope)
+}
