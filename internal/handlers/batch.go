@@ -85,7 +85,7 @@ func (h *Handler) batchRoutes() []route {
 //	@Description	In: text/csv with a header row of parameter names and one case a row (an empty cell leaves the parameter out; a UTF-8 byte-order mark is allowed), or application/json with an array of request objects (the members of a single POST).
 //	@Description	Parameters in the query string (other than the output options) apply to every row; a row that gives one too is an error of that row.
 //	@Description	Out: CSV or JSON as format= asks, else as Accept asks (text/csv or application/json), else the form of the body. Each row has every input column as sent, then every result column with its unit in the name (`delta_length [mm]`; units by units= and <result>_unit=, empty or null where a result is not computed for the row), then for joints/gap a check_<name> column per check (pass, fail, or empty where the row has no such check), then `warnings`, `cautions` (each caution once, in the first row it applies to; the standing ones in the first row) and `error` (empty where the row computed). A JSON answer is an array of flat objects with exactly these keys, a table like the CSV. With a JSON body and a CSV answer the columns are the members of the first element.
-//	@Description	One bad row never fails the batch: its error column says what is wrong, in the words of the single request's problem detail.
+//	@Description	One bad row never fails the batch: its error column says what is wrong, in the words of the single request's problem detail. A CSV header column or query parameter the calculation does not take is a 400 problem naming it (the first row decides), since every row would be refused for it.
 //	@Description	Limits: rows (--batch-max-rows, default 100000) and body bytes (--batch-max-bytes, default 32 MiB). The answer streams: rows are computed and sent as they are read, so memory stays flat. A limit reached before 64 KiB of answer is ready is a 413 problem; after that the status line has been sent, so the answer ends with one more row whose error begins "batch stopped after row N:" and whose other cells are empty, and the trailer Batch-Status says "stopped after row N: ..." (else "complete: N rows"). A body whose Content-Length is over the byte limit is refused with 413 at once.
 //	@Description	Demo example: three bays of a warehouse slab, `length,material,t_initial,t_final` / `30 m,concrete,15 degC,-10 degC` / ...
 //	@Tags			batch
@@ -443,6 +443,10 @@ func (r *batchRun) serve() {
 			return
 		}
 		if first {
+			if err := r.unknownInputs(ch); err != nil {
+				r.h.problem(r.c, nil, err)
+				return
+			}
 			if err := r.w.header(ch.inputs, results); err != nil {
 				return
 			}
@@ -564,6 +568,7 @@ type computed struct {
 	cautions []string // the calculation's own, beyond the standing ones
 	notes    string   // the cautions this row is the first to carry (see fresh)
 	msg      string
+	unknown  []string // parameters the row was refused for as unknown
 }
 
 // fresh returns the cautions that no earlier row of the answer carried,
@@ -631,7 +636,7 @@ func (r *batchRun) flush() error {
 // runs it, and keeps in c its results in their output units, its warnings
 // or its error message; p is the worker's parameter reader.
 func (r *batchRun) compute(c *computed, columns []string, p *params) {
-	c.warnings, c.checks, c.cautions = nil, nil, nil
+	c.warnings, c.checks, c.cautions, c.unknown = nil, nil, nil, nil
 	c.msg = r.computeRow(c, columns, p)
 }
 
@@ -675,6 +680,7 @@ func (r *batchRun) computeRow(c *computed, columns []string, p *params) string {
 		err = withFaults(err, row.faults, row.vals)
 	}
 	if err != nil {
+		c.unknown = unknownNames(err)
 		return problemOf(err, "").Detail
 	}
 	items, ok := r.out.convert(resp.Results, c.items[:0])
@@ -684,6 +690,46 @@ func (r *batchRun) computeRow(c *computed, columns []string, p *params) string {
 	}
 	c.warnings, c.checks, c.cautions = inputWarnings(p, resp.Warnings), checksOf(resp.Results), resp.Cautions
 	return ""
+}
+
+// unknownNames returns the parameters err refuses as unknown.
+func unknownNames(err error) []string {
+	var ae *apiError
+	if !errors.As(err, &ae) {
+		return nil
+	}
+	var names []string
+	for _, f := range ae.fields {
+		if f.Detail == unknownParameter {
+			names = append(names, f.Parameter)
+		}
+	}
+	return names
+}
+
+// unknownInputs is a 400 for the parameters every row carries, the CSV
+// header's columns and the query's, that the calculation does not take:
+// each row would be refused for them. The first row names them; nothing
+// of the answer has been sent yet.
+func (r *batchRun) unknownInputs(first *batchChunk) error {
+	if len(first.rows) == 0 || r.sink.committed {
+		return nil
+	}
+	var fs []FieldError
+	for _, n := range first.rows[0].unknown {
+		where := "query parameter"
+		if _, shared := r.shared[n]; !shared {
+			if !r.inCSV || !contains(first.inputs, n) {
+				continue // one JSON element's member: that row's error
+			}
+			where = "column"
+		}
+		fs = append(fs, FieldError{Parameter: n, Detail: unknownParameter + " (a " + where + "): " + r.spec.name + " has no input of this name, so every row would be refused"})
+	}
+	if fs == nil {
+		return nil
+	}
+	return newError(errInvalid, joinFields(fs), fs...)
 }
 
 // isOutput reports whether a name is an output option: format, units,

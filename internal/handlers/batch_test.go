@@ -393,6 +393,9 @@ func TestBatchRefusals(t *testing.T) {
 		{"two columns one name", "/v1/batch/expansion/linear", "text/csv", "length,length\n", 400, "names two columns"},
 		{"output option column", "/v1/batch/expansion/linear", "text/csv", "length,delta_length_unit\n", 400, "query string"},
 		{"column and query", "/v1/batch/expansion/linear?alpha=12e-6/K", "text/csv", okCSV, 400, "both the query and the header"},
+		{"unknown column", "/v1/batch/expansion/linear", "text/csv", "length,alpha,delta_t,colour\n48 m,12e-6/K,50 K,red\n", 400, "colour unknown parameter (a column)"},
+		{"unknown query parameter", "/v1/batch/expansion/linear?shade=1", "text/csv", okCSV, 400, "shade unknown parameter (a query parameter)"},
+		{"unknown query parameter, JSON", "/v1/batch/expansion/linear?shade=1", "application/json", `[{"length": "1 m", "alpha": "1e-6/K", "delta_t": "1 K"}]`, 400, "shade unknown parameter"},
 		{"json not array", "/v1/batch/expansion/linear", "application/json", `{"length": "1 m"}`, 400, "array"},
 		{"json malformed", "/v1/batch/expansion/linear", "application/json", `[{"length": }]`, 400, "malformed JSON"},
 		{"rows over the limit", "/v1/batch/expansion/linear", "text/csv", okCSV + "1 m,1e-6/K,1 K\n2 m,1e-6/K,1 K\n3 m,1e-6/K,1 K\n", 413, "over the limit of 3 rows"},
@@ -414,6 +417,12 @@ func TestBatchRefusals(t *testing.T) {
 	// value would be wrong as well.
 	if p := decodeProblem(t, post(t, r, "/v1/batch/expansion/linear?result=x", "text/csv", "", okCSV)); len(p.Errors) != 1 || p.Errors[0].Parameter != "result" {
 		t.Errorf("result=x: errors %+v, want one, on result", p.Errors)
+	}
+	// A member of one JSON element is that element's own: the other rows
+	// are answered.
+	w0 := post(t, r, "/v1/batch/expansion/linear", "application/json", "", `[{"length": "1 m", "alpha": "1e-6/K", "delta_t": "1 K", "colour": "red"}, {"length": "1 m", "alpha": "1e-6/K", "delta_t": "1 K"}]`)
+	if w0.Code != http.StatusOK || !strings.Contains(w0.Body.String(), `"error":"invalid parameter \"colour\": unknown parameter"`) {
+		t.Errorf("unknown member of one JSON element: status %d, want 200 with that row's error: %s", w0.Code, w0.Body)
 	}
 	// A body of unknown length over the byte limit is refused as well,
 	// while nothing has been sent.

@@ -116,6 +116,9 @@ func (p *params) ok() bool {
 	return true
 }
 
+// unknownParameter is the detail of a parameter no calculation step read.
+const unknownParameter = "unknown parameter"
+
 // done checks for parameters nobody read, then returns every problem
 // found as one error, or nil.
 func (p *params) done() error {
@@ -132,7 +135,7 @@ func (p *params) done() error {
 	sort.Strings(unknown)
 	for _, k := range unknown {
 		p.markUsed(k)
-		p.invalid(k, "unknown parameter")
+		p.invalid(k, unknownParameter)
 	}
 	return fieldsError(p.errs)
 }
