@@ -89,6 +89,9 @@ func linearMethod(co coefficient) string {
 	if co.Kind == "constant" {
 		return "dL = alpha L0 dT with a constant mean coefficient alpha (" + co.from + "); L = L0 + dL"
 	}
+	if co.Joined {
+		return "dL = L0 e over two curves joined at tj = " + units.CelsiusText(co.Join) + ": 1 + e = (1 + e1) (1 + e2), e1 from the lower temperature to tj by the first curve and e2 from tj to the higher by the second (for cooling, 1 + e is the inverse), each (1 + e(T2)) / (1 + e(T1)) - 1 from its total strain e(T) (" + co.from + "); alpha_mean = e / dT"
+	}
 	return "dL = L0 e, e = (1 + e(t_final)) / (1 + e(t_initial)) - 1 from the total strain e(T) of the " + co.Kind + " data (" + co.from + "); alpha_mean = e / dT"
 }
 

@@ -7,6 +7,9 @@ import (
 	"slices"
 	"strings"
 	"testing"
+
+	"github.com/thermalmovement/service/internal/materials"
+	"github.com/thermalmovement/service/internal/units"
 )
 
 func q(kv ...string) string {
@@ -330,5 +333,26 @@ func TestWaterAboveBoiling(t *testing.T) {
 		if got != tc.warn {
 			t.Errorf("water 20 degC to %s: warnings %q, want the boiling warning: %v", tc.t2, d.Warnings, tc.warn)
 		}
+	}
+}
+
+// TestJoinedCurvesAnswer: an aluminium facade mullion (demo data, 6 m)
+// from -20 to 80 degC lies across the catalogue's NIST fit (to 300 K) and
+// its EN 1999-1-2 formula (from 20 degC). The answer says where they are
+// joined and cites both; the strain itself is checked against the two
+// published formulas in internal/materials (TestChainedCurves). Here: the
+// length change is L0 e with e from the catalogue (ASTM E228 definition,
+// from memory), and no warning of a constant used beyond its range.
+func TestJoinedCurvesAnswer(t *testing.T) {
+	h := newTestHandler(t)
+	al, _ := h.cat.Get("aluminium-6061")
+	e, err := al.Linear(units.Celsius(-20), units.Celsius(80), materials.Auto, false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	d := decode(t, do(t, h.Router(), http.MethodGet, "/v1/expansion/linear?length=6%20m&material=aluminium-6061&t_initial=-20%20degC&t_final=80%20degC", "", ""))
+	checkResult(t, d, "delta_length", 6000*e.Strain, "mm", 1e-9, len(standingCautions))
+	if !strings.Contains(d.Method, "joined at tj = 26.85 degC") || !anyContains(d.References, "NIST") || !anyContains(d.References, "EN 1999-1-2") || len(d.Warnings) != 0 {
+		t.Errorf("method %q, references %q, warnings %q; want the join at 26.85 degC, both curves cited, no warning", d.Method, d.References, d.Warnings)
 	}
 }

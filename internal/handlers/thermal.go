@@ -108,7 +108,10 @@ func (p *params) strain(alphaName, materialName string, iv interval, ivOK bool, 
 		return coefficient{}, false
 	}
 	from := "catalogue " + m.ID + ", constant coefficient"
-	if e.Kind != "constant" {
+	switch {
+	case e.Joined:
+		from = "catalogue " + m.ID + ", " + e.Kind + " curves joined at " + units.CelsiusText(e.Join)
+	case e.Kind != "constant":
 		from = "catalogue " + m.ID + ", " + e.Kind + " curve"
 	}
 	c := coefficient{Expansion: e, from: from}

@@ -230,3 +230,51 @@ func TestSelection(t *testing.T) {
 		t.Error("water has no linear coefficient, want an error")
 	}
 }
+
+// TestChainedCurves checks an interval that no one curve holds but two
+// whose ranges meet do: demo data, an aluminium facade mullion between
+// -20 and 80 degC. The expected strain is computed here from the two
+// published formulas: the NIST cryogenic fit for 6061-T6,
+// (L - L293)/L293 = (a + bT + cT^2 + dT^3) x 1e-5 up to 300 K
+// (../shared/docs/verification.md, read), and EN 1999-1-2 3.3.1.1,
+// dl/l = 0.1e-7 theta^2 + 22.5e-6 theta - 4.5e-4 from 20 degC (from
+// memory of EN 1999-1-2, not re-read), lengths multiplied at 300 K. The
+// catalogue zeroes each fit at its reference (the NIST fit gives -4e-7 at
+// 293 K, EN 1999-1-2 +4e-6 at 20 degC), which moves the strain by parts
+// in a million: the tolerance is relative 1e-5.
+func TestChainedCurves(t *testing.T) {
+	c := load(t)
+	al, _ := c.Get("aluminium-6061")
+	nist := func(k float64) float64 { return (-4.1277e2 - 3.0389e-1*k + 8.7696e-3*k*k - 9.9821e-6*k*k*k) * 1e-5 }
+	en := func(th float64) float64 { return 0.1e-7*th*th + 22.5e-6*th - 4.5e-4 }
+	ratio := (1 + nist(300)) / (1 + nist(253.15)) * (1 + en(80)) / (1 + en(300-273.15))
+	for _, tc := range []struct {
+		t1, t2 float64
+		want   float64
+	}{{-20, 80, ratio - 1}, {80, -20, 1/ratio - 1}} {
+		for _, model := range []Model{Auto, CurveFit} {
+			e, err := al.Linear(units.Celsius(tc.t1), units.Celsius(tc.t2), model, false)
+			if err != nil || !e.Joined || math.Abs(e.Strain-tc.want) > 1e-5*math.Abs(tc.want) {
+				t.Errorf("aluminium-6061 %v..%v degC (%s) = %+v, %v; want joined curves, strain %.6g", tc.t1, tc.t2, model, e, err, tc.want)
+				continue
+			}
+			if math.Abs(float64(e.Join)-300) > 1e-9 || len(e.Source.Refs) != 2 || e.Source.Confidence != "memory" || len(e.Warnings) != 0 {
+				t.Errorf("aluminium-6061 %v..%v degC: join %v K, source %+v, warnings %q; want 300 K, both references, memory, no warning", tc.t1, tc.t2, float64(e.Join), e.Source, e.Warnings)
+			}
+		}
+	}
+	// Within one curve nothing is joined; beyond both, the 422 stays.
+	if e, err := al.Linear(units.Celsius(-100), units.Celsius(0), Auto, false); err != nil || e.Joined {
+		t.Errorf("aluminium-6061 -100..0 degC = %+v, %v; want the NIST curve alone", e, err)
+	}
+	var oor *OutOfRangeError
+	if _, err := al.Linear(units.Celsius(-20), units.Celsius(600), Auto, false); !errors.As(err, &oor) {
+		t.Errorf("aluminium-6061 -20..600 degC error = %v, want OutOfRangeError", err)
+	}
+	// Stainless 304 joins its NIST fit to the first curve from 20 degC,
+	// its mean-coefficient table.
+	ss, _ := c.Get("stainless-steel-304")
+	if e, err := ss.Linear(units.Celsius(-40), units.Celsius(60), Auto, false); err != nil || !e.Joined || e.Kind != "piecewise-strain and mean-table" {
+		t.Errorf("stainless-steel-304 -40..60 degC = %+v, %v; want the NIST fit joined to the mean table", e, err)
+	}
+}

@@ -3,6 +3,8 @@ package materials
 import (
 	"fmt"
 	"math"
+	"slices"
+	"strings"
 
 	"github.com/thermalmovement/service/internal/calc"
 	"github.com/thermalmovement/service/internal/units"
@@ -14,7 +16,7 @@ type Model string
 
 // The models a request may ask for.
 const (
-	Auto     Model = "auto"     // constant within its range, else a curve that covers the interval
+	Auto     Model = "auto"     // constant within its range, else a curve (or two joined) that covers the interval
 	Constant Model = "constant" // the constant design coefficient, whatever the temperatures
 	CurveFit Model = "curve"    // a temperature-dependent curve
 )
@@ -24,7 +26,9 @@ const (
 type Expansion struct {
 	Strain    float64 // linear strain of a length measured at the initial temperature
 	AlphaMean float64 // Strain / (t2 - t1); the constant coefficient when dT = 0
-	Kind      string  // "constant" or the curve kind
+	Kind      string  // "constant" or the curve kind ("<kind> and <kind>" for two joined)
+	Joined    bool    // two curves joined at Join (see chain)
+	Join      units.Temperature
 	Source    Source
 	Warnings  []string
 }
@@ -44,7 +48,8 @@ func (e *OutOfRangeError) Unwrap() error { return calc.ErrOutOfRange }
 // model asked for.
 //
 // Auto takes the constant coefficient where both temperatures lie within
-// its range; else the first curve whose range holds both; else, while the
+// its range; else the first curve whose range holds both; else two curves
+// whose ranges meet, chained (see chain); else, while the
 // interval stays within the span of all the material's data, the constant
 // with a warning. Beyond all the data, and for Curve when no curve holds
 // the interval, it returns an *OutOfRangeError unless extrapolate is set:
@@ -85,6 +90,9 @@ func (m *Material) Linear(t1, t2 units.Temperature, model Model, extrapolate boo
 		if calc.InRange(c, t1) && calc.InRange(c, t2) {
 			return m.curve(c, t1, t2), nil
 		}
+	}
+	if e, ok := m.chain(t1, t2); ok {
+		return e, nil
 	}
 	dataLo, dataHi := m.Alpha.TMin, m.Alpha.TMax
 	if !m.Alpha.HasRange {
@@ -135,6 +143,64 @@ func (m *Material) LinearDelta(dT units.TemperatureDifference) (Expansion, error
 			units.FormatNumber(math.Abs(float64(dT))), span(a.TMin, a.TMax), m.ID))
 	}
 	return e, nil
+}
+
+// chain returns the strain from t1 to t2 over two curves whose ranges
+// overlap, when no one curve holds both temperatures: the first curve that
+// holds the lower temperature, up to the top of its range, then the first
+// that holds the higher one and that top. A low-temperature fit (NIST,
+// 4..300 K) and a table or formula from 20 degC meet this way, as for an
+// aluminium facade between -20 and 80 degC. Lengths multiply across the
+// join: 1 + e(t1 -> t2) = (1 + e_a(lo -> tj)) (1 + e_b(tj -> hi)) when
+// heating, and its inverse when cooling.
+func (m *Material) chain(t1, t2 units.Temperature) (Expansion, bool) {
+	lo, hi := min(t1, t2), max(t1, t2)
+	var a, b *Curve
+	for i := range m.Curves {
+		if calc.InRange(m.Curves[i], lo) {
+			a = &m.Curves[i]
+			break
+		}
+	}
+	if a == nil {
+		return Expansion{}, false
+	}
+	_, tj := a.Range()
+	for i := range m.Curves {
+		if c := &m.Curves[i]; c != a && calc.InRange(c, hi) && calc.InRange(c, tj) {
+			b = c
+			break
+		}
+	}
+	if b == nil {
+		return Expansion{}, false
+	}
+	ratio := (1 + calc.IntervalStrain(a, lo, tj)) * (1 + calc.IntervalStrain(b, tj, hi))
+	e := Expansion{Strain: ratio - 1, Kind: a.Kind + " and " + b.Kind, Joined: true, Join: tj, Source: joinSources(a.Source, b.Source)}
+	if t1 > t2 {
+		e.Strain = 1/ratio - 1
+	}
+	e.AlphaMean = e.Strain / float64(t2.Sub(t1))
+	return e, true
+}
+
+// joinSources is the source of data taken from both a and b: every
+// reference of each, and "memory" when either is not re-read.
+func joinSources(a, b Source) Source {
+	s := Source{Confidence: a.Confidence}
+	if b.Confidence != "read" {
+		s.Confidence = b.Confidence
+	}
+	for _, x := range []Source{a, b} {
+		for i, r := range x.Refs {
+			if !slices.Contains(s.Refs, r) {
+				s.Refs = append(s.Refs, r)
+				s.Citations = append(s.Citations, x.Citations[i])
+			}
+		}
+	}
+	s.Note = strings.TrimSpace(a.Note + " " + b.Note)
+	return s
 }
 
 func (m *Material) constant(dT units.TemperatureDifference) Expansion {
