@@ -308,7 +308,13 @@ func (h *Handler) property(p *params, resp *Response, name, matName, what, examp
 func (h *Handler) modulusFrom(p *params, resp *Response, name, matName string) (float64, bool) {
 	return h.property(p, resp, name, matName, "modulus", "70 GPa",
 		func(m *materials.Material) *materials.Property { return m.Modulus },
-		func() (float64, bool) { return p.positive(name, units.Stress) },
+		func() (float64, bool) {
+			v, ok := p.positive(name, units.Stress)
+			if ok && v < softest {
+				p.warnings = append(p.warnings, name+" is "+units.FormatNumber(v/1e3)+" kPa, softer than any solid this service computes (elastomers are about 1 MPa and stiffer): check the unit, GPa perhaps")
+			}
+			return v, ok
+		},
 		func(v float64) (float64, string) { return v / 1e9, "GPa" })
 }
 

@@ -356,3 +356,30 @@ func TestJoinedCurvesAnswer(t *testing.T) {
 		t.Errorf("method %q, references %q, warnings %q; want the join at 26.85 degC, both curves cited, no warning", d.Method, d.References, d.Warnings)
 	}
 }
+
+// TestImplausibleInputsWarn: temperatures and changes beyond what
+// structures, pipes and vessels meet (over 2000 degC, changes over
+// 2000 K) and a modulus under 1 MPa are computed with a warning to check
+// the value. The bounds are common practice, no published source; the
+// 9000 degF case is (9000 - 32) / 1.8 = 4982.2 degC (NIST SP 811, from
+// memory).
+func TestImplausibleInputsWarn(t *testing.T) {
+	r := newTestHandler(t).Router()
+	for _, tc := range []struct {
+		query, warn string // warn: "" for none
+	}{
+		{"/v1/expansion/linear?length=1%20m&alpha=12e-6/K&delta_t=2000%20K", ""},
+		{"/v1/expansion/linear?length=1%20m&alpha=12e-6/K&delta_t=-2001%20K", "delta_t is -2001 K, wider than"},
+		{"/v1/expansion/linear?length=1%20m&alpha=12e-6/K&t_initial=20%20degC&t_final=2000%20degC", ""},
+		{"/v1/expansion/linear?length=1%20m&alpha=12e-6/K&t_initial=20%20degC&t_final=2001%20degC", "t_final is 2001 degC, hotter than"},
+		{"/v1/expansion/linear?length=1%20m&alpha=12e-6/K&t_initial=20%20degF&t_final=9000%20degF", "t_final is 9000 degF (4982.22 degC), hotter than"},
+		{"/v1/restraint?alpha=12e-6/K&delta_t=40%20K&modulus=210%20kPa&yield_strength=1%20MPa", "modulus is 210 kPa, softer than"},
+		{"/v1/restraint?alpha=12e-6/K&delta_t=40%20K&modulus=1%20MPa&yield_strength=1%20MPa", ""},
+	} {
+		d := decode(t, do(t, r, http.MethodGet, tc.query, "", ""))
+		got := anyContains(d.Warnings, "check the value") || anyContains(d.Warnings, "check the unit")
+		if tc.warn == "" && got || tc.warn != "" && !anyContains(d.Warnings, tc.warn) {
+			t.Errorf("%s: warnings %q; want %q", tc.query, d.Warnings, tc.warn)
+		}
+	}
+}

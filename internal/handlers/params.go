@@ -205,6 +205,20 @@ var plausible = map[units.Dim]float64{
 // maxKelvin bounds absolute temperatures and temperature differences.
 const maxKelvin = 1e5
 
+// Below maxKelvin, temperatures no structure, pipe or vessel meets are
+// computed with a warning: above 2000 degC, and changes over 2000 K (a
+// building fire stays below about 1200 degC). Common practice, no
+// published source.
+const (
+	hottest = 2273.15 // K
+	widest  = 2000.0  // K
+)
+
+// softest is the smallest Young's modulus read without a warning, 1 MPa:
+// elastomers are about that and stiffer, and 210 kPa is more often
+// 210 GPa mistyped than a material. Common practice, no published source.
+const softest = 1e6 // Pa
+
 func dimMessage(err error, q units.Quantity, d units.Dim) string {
 	if errors.Is(err, units.ErrNoUnit) {
 		return "a bare number is not " + d.Article() + " " + d.String() + ": give its unit, such as " + strconv.Quote(d.Example())
@@ -256,6 +270,13 @@ func (p *params) temperature(name string) (units.Temperature, bool) {
 	}
 	p.inputs.addQuantity(name, q)
 	p.checkScale(name, q, t)
+	if float64(t) > hottest {
+		v := q.String()
+		if q.Unit.Symbol != "degC" {
+			v += " (" + units.CelsiusText(t) + ")"
+		}
+		p.warnings = append(p.warnings, name+" is "+v+", hotter than structures, pipes and vessels get, fire included: check the value and its unit")
+	}
 	return t, true
 }
 
@@ -306,6 +327,9 @@ func (p *params) difference(name string) (units.TemperatureDifference, bool) {
 		return 0, false
 	}
 	p.inputs.addQuantity(name, q)
+	if math.Abs(float64(d)) > widest {
+		p.warnings = append(p.warnings, name+" is "+q.String()+", wider than the temperature changes structures, pipes and vessels meet, fire included: check the value and its unit")
+	}
 	return d, true
 }
 
