@@ -191,6 +191,9 @@ func (h *Handler) newBatchRun(c *gin.Context, spec batchSpec) (*batchRun, error)
 	if err != nil {
 		return nil, err
 	}
+	if msg := unsupportedCoding(c.Request.Header); msg != "" {
+		return nil, newError(errMediaType, msg)
+	}
 	outCSV := inCSV
 	switch format {
 	case "csv":

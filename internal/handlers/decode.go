@@ -132,6 +132,9 @@ func readJSON(r *http.Request, limit int64, into map[string]raw) ([]FieldError, 
 	if err := checkJSONType(r.Header.Get("Content-Type")); err != nil {
 		return nil, err
 	}
+	if msg := unsupportedCoding(r.Header); msg != "" {
+		return nil, &errBody{errMediaType, msg}
+	}
 	body, err := io.ReadAll(http.MaxBytesReader(nil, r.Body, limit))
 	if err != nil {
 		var mbe *http.MaxBytesError
@@ -155,6 +158,20 @@ func checkJSONType(ct string) error {
 		return &errBody{errMediaType, "JSON must be UTF-8, not " + strconv.Quote(cs)}
 	}
 	return nil
+}
+
+// unsupportedCoding describes a body sent with a content coding (gzip,
+// deflate, ...): bodies are read as sent, so RFC 9110 15.5.16 asks for a
+// 415. It returns "" for a body without one, or marked identity.
+func unsupportedCoding(h http.Header) string {
+	for _, v := range h.Values("Content-Encoding") {
+		for _, c := range strings.Split(v, ",") {
+			if c = strings.TrimSpace(c); c != "" && !strings.EqualFold(c, "identity") {
+				return "Content-Encoding " + strconv.QuoteToASCII(c) + " is not accepted: send the body uncompressed"
+			}
+		}
+	}
+	return ""
 }
 
 // utf8BOM is the byte order mark some editors put before UTF-8 text.

@@ -3,6 +3,7 @@ package handlers
 import (
 	"fmt"
 	"net/http"
+	"net/http/httptest"
 	"reflect"
 	"slices"
 	"strings"
@@ -369,5 +370,29 @@ func TestConflictsAreNotUnknown(t *testing.T) {
 	}
 	if !bogus {
 		t.Errorf("bogus beside a conflict is not reported: %s", w.Body)
+	}
+}
+
+// TestCompressedBodyRefused: the service reads bodies as sent, so a body
+// with a content coding it does not apply is a 415 (RFC 9110 15.5.16,
+// read), for a calculation and for a batch; identity is no coding.
+func TestCompressedBodyRefused(t *testing.T) {
+	r := newTestHandler(t).Router()
+	for _, tc := range []struct {
+		target, ct, coding, body string
+		status                   int
+	}{
+		{"/v1/expansion/linear", "application/json", "gzip", `{"length": "1 m", "alpha": "1e-5/K", "delta_t": "10 K"}`, 415},
+		{"/v1/batch/expansion/linear", "text/csv", "br", "length,alpha,delta_t\n1 m,1e-5/K,10 K\n", 415},
+		{"/v1/expansion/linear", "application/json", "identity", `{"length": "1 m", "alpha": "1e-5/K", "delta_t": "10 K"}`, 200},
+	} {
+		req := httptest.NewRequest(http.MethodPost, tc.target, strings.NewReader(tc.body))
+		req.Header.Set("Content-Type", tc.ct)
+		req.Header.Set("Content-Encoding", tc.coding)
+		w := httptest.NewRecorder()
+		r.ServeHTTP(w, req)
+		if w.Code != tc.status || tc.status == 415 && !strings.Contains(w.Body.String(), "send the body uncompressed") {
+			t.Errorf("%s with Content-Encoding %s: %d %s; want %d", tc.target, tc.coding, w.Code, w.Body, tc.status)
+		}
 	}
 }

@@ -97,7 +97,7 @@ var problemTypes = map[string]string{
 	"method-not-allowed":     "405: the route exists but not for this method; the Allow header lists the methods.",
 	"too-large":              "413: the body, or a batch's rows, are over the limit.",
 	"uri-too-long":           "414: the request URI is over the limit (8 KiB by default); send long inputs as a POST JSON body.",
-	"unsupported-media-type": "415: a POST body must be application/json (text/csv for batches).",
+	"unsupported-media-type": "415: a POST body must be application/json (text/csv for batches), UTF-8 and uncompressed (no Content-Encoding but identity).",
 	"not-computable":         "422: the inputs were read but cannot be computed: a negative length, a temperature below 0 K or outside the data's range, contradictory inputs.",
 	"unauthorized":           "401: this deployment requires an API key.",
 	"overloaded":             "503: too many requests in flight; retry after the Retry-After delay.",
