@@ -250,7 +250,9 @@ func (h *Handler) stoney(resp *Response, res *DifferentialResults, strip calc.Bi
 	sigma := calc.FilmMismatchStress(eF, eS, ef, nuF)
 	res.FilmStress = si(sigma)
 	res.StoneyCurvature = si(sign * calc.StoneyCurvature(sigma, tf, ts, es, nuS))
-	*method = append(*method, "thin film "+film+": biaxial film stress E_f/(1 - nu_f)(e_s - e_f), tension positive; Stoney (1909) curvature 6 sigma_f t_f (1 - nu_s) / (E_s t_s^2), signed as curvature")
+	*method = append(*method, "thin film "+film+": biaxial film stress E_f/(1 - nu_f)(e_s - e_f), tension positive; Stoney (1909) curvature 6 sigma_f t_f (1 - nu_s) / (E_s t_s^2), signed as curvature",
+		"curvature treats the strip as a beam (stress along its length only) and stoney_curvature as a plate under equal stress both ways, so for a thin film they differ by about the factor (1 - nu_s) / (1 - nu_f), here "+
+			units.FormatNumber(math.Round((1-nuS)/(1-nuF)*1000)/1000)+": curvature for a narrow strip, stoney_curvature for a wafer or a wide panel")
 	if hasMeasured {
 		res.FilmStressMeasured = si(calc.StoneyStress(sign*measured, tf, ts, es, nuS))
 		*method = append(*method, "film_stress_from_curvature = E_s t_s^2 kappa / (6 t_f (1 - nu_s)) (Stoney 1909)")
