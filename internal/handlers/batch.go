@@ -11,6 +11,7 @@ import (
 	"net/http"
 	"reflect"
 	"runtime"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -448,6 +449,7 @@ func (r *batchRun) serve() {
 		if first {
 			if err := r.unknownInputs(ch); err != nil {
 				r.h.problem(r.c, nil, err)
+				r.c.Writer.Flush() // final: the client may stop sending
 				return
 			}
 			if err := r.w.header(ch.inputs, results); err != nil {
@@ -695,7 +697,9 @@ func (r *batchRun) computeRow(c *computed, columns []string, p *params) string {
 	return ""
 }
 
-// unknownNames returns the parameters err refuses as unknown.
+// unknownNames returns the parameters err refuses as unknown, when that
+// is all it refuses: a row with other faults as well may have stopped
+// before reading a parameter it would have taken.
 func unknownNames(err error) []string {
 	var ae *apiError
 	if !errors.As(err, &ae) {
@@ -703,23 +707,29 @@ func unknownNames(err error) []string {
 	}
 	var names []string
 	for _, f := range ae.fields {
-		if f.Detail == unknownParameter {
-			names = append(names, f.Parameter)
+		if f.Detail != unknownParameter {
+			return nil
 		}
+		names = append(names, f.Parameter)
 	}
 	return names
 }
 
 // unknownInputs is a 400 for the parameters every row carries, the CSV
 // header's columns and the query's, that the calculation does not take:
-// each row would be refused for them. The first row names them; nothing
-// of the answer has been sent yet.
+// each row would be refused for them. The first row that reaches the
+// calculation names them, when they are all it is refused for; nothing of
+// the answer has been sent yet.
 func (r *batchRun) unknownInputs(first *batchChunk) error {
-	if len(first.rows) == 0 || r.sink.committed {
+	if r.sink.committed {
+		return nil
+	}
+	i := slices.IndexFunc(first.rows, func(c computed) bool { return c.row.err == "" && len(c.row.names) > 0 })
+	if i < 0 {
 		return nil
 	}
 	var fs []FieldError
-	for _, n := range first.rows[0].unknown {
+	for _, n := range first.rows[i].unknown {
 		where := "query parameter"
 		if _, shared := r.shared[n]; !shared {
 			if !r.inCSV || !contains(first.inputs, n) {
@@ -727,12 +737,12 @@ func (r *batchRun) unknownInputs(first *batchChunk) error {
 			}
 			where = "column"
 		}
-		fs = append(fs, FieldError{Parameter: n, Detail: unknownParameter + " (a " + where + "): " + r.spec.name + " has no input of this name, so every row would be refused"})
+		fs = append(fs, FieldError{Parameter: n, Detail: unknownParameter + " (a " + where + "): " + r.spec.name + " has no input of this name"})
 	}
 	if fs == nil {
 		return nil
 	}
-	return newError(errInvalid, joinFields(fs), fs...)
+	return newError(errInvalid, joinFields(fs)+"; every row would be refused", fs...)
 }
 
 // isOutput reports whether a name is an output option: format, units,

@@ -418,6 +418,18 @@ func TestBatchRefusals(t *testing.T) {
 	if p := decodeProblem(t, post(t, r, "/v1/batch/expansion/linear?result=x", "text/csv", "", okCSV)); len(p.Errors) != 1 || p.Errors[0].Parameter != "result" {
 		t.Errorf("result=x: errors %+v, want one, on result", p.Errors)
 	}
+	// The first row that reaches the calculation decides, and only when
+	// unknown parameters are all it is refused for: a gap row first still
+	// finds the column; a first row refused for a bad beta, which stops
+	// expansion/volume before it reads material, does not make material
+	// unknown for the rest.
+	if w := post(t, r, "/v1/batch/expansion/linear", "text/csv", "", "length,alpha,delta_t,colour\n,,,\n48 m,12e-6/K,50 K,red\n"); w.Code != http.StatusBadRequest {
+		t.Errorf("gap row before an unknown column: status %d, want 400: %s", w.Code, w.Body)
+	}
+	w1 := post(t, batchTestHandler(t, Options{}).Router(), "/v1/batch/expansion/volume", "text/csv", "", "volume,beta,material,delta_t\n1 m3,abc,structural-steel,10 K\n1 m3,2e-4/K,structural-steel,10 K\n")
+	if rows := readCSV(t, w1.Body.Bytes()); w1.Code != http.StatusOK || len(rows) != 3 || strings.Contains(w1.Body.String(), "unknown") || rows[2][len(rows[2])-1] != "" {
+		t.Errorf("volume batch with a bad beta first: status %d, want 200 with row 2 computed and nothing unknown: %s", w1.Code, w1.Body)
+	}
 	// A member of one JSON element is that element's own: the other rows
 	// are answered.
 	w0 := post(t, r, "/v1/batch/expansion/linear", "application/json", "", `[{"length": "1 m", "alpha": "1e-6/K", "delta_t": "1 K", "colour": "red"}, {"length": "1 m", "alpha": "1e-6/K", "delta_t": "1 K"}]`)

@@ -396,3 +396,19 @@ func TestCompressedBodyRefused(t *testing.T) {
 		}
 	}
 }
+
+// TestVolumeBadBetaNamesOnlyBeta: a volume with an unreadable beta
+// beside a material is refused for beta alone; material, which beta
+// overrides, is not an unknown parameter.
+func TestVolumeBadBetaNamesOnlyBeta(t *testing.T) {
+	r := newTestHandler(t).Router()
+	for _, query := range []string{
+		"/v1/expansion/volume?volume=1%20m3&beta=abc&material=structural-steel&delta_t=10%20K",
+		"/v1/expansion/volume?volume=1%20m3&beta=2e-4/K&material=structural-steel&delta_t=1O%20K",
+	} {
+		w := do(t, r, http.MethodGet, query, "", "")
+		if p := decodeProblem(t, w); w.Code != http.StatusBadRequest || len(p.Errors) != 1 || p.Errors[0].Parameter == "material" {
+			t.Errorf("%s: status %d, errors %+v; want 400 naming only the bad value", query, w.Code, p.Errors)
+		}
+	}
+}

@@ -309,10 +309,8 @@ func (h *Handler) volume(p *params) (*Response, error) {
 	switch {
 	case p.has("beta") || liquid != nil:
 		beta, hasBeta := p.dim("beta", units.Coefficient)
-		if p.has("beta") && !hasBeta {
-			break
-		}
-		if !ivOK {
+		if (p.has("beta") && !hasBeta) || !ivOK {
+			p.markUsed("material") // noted beside beta, not unknown
 			break
 		}
 		if hasBeta {
