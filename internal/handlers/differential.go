@@ -313,7 +313,7 @@ func (h *Handler) modulusFrom(p *params, resp *Response, name, matName string) (
 		func() (float64, bool) {
 			v, ok := p.positive(name, units.Stress)
 			if ok && v < softest {
-				p.warnings = append(p.warnings, name+" is "+units.FormatNumber(v/1e3)+" kPa, softer than any solid this service computes (elastomers are about 1 MPa and stiffer): check the unit, GPa perhaps")
+				p.warnings = append(p.warnings, name+" is "+formatRounded(v/1e3)+" kPa, under 1 MPa: as soft as a sealant or a foam; if a metal, concrete, glass or timber is meant, check the unit (GPa?)")
 			}
 			return v, ok
 		},

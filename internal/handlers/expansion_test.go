@@ -361,19 +361,21 @@ func TestJoinedCurvesAnswer(t *testing.T) {
 // structures, pipes and vessels meet (over 2000 degC, changes over
 // 2000 K) and a modulus under 1 MPa are computed with a warning to check
 // the value. The bounds are common practice, no published source; the
-// 9000 degF case is (9000 - 32) / 1.8 = 4982.2 degC (NIST SP 811, from
-// memory).
+// 9000 degF case is (9000 - 32) / 1.8 = 4982.2 degC, and a change of
+// 3700 degF is 3700 / 1.8 = 2056 K (NIST SP 811, from memory).
 func TestImplausibleInputsWarn(t *testing.T) {
 	r := newTestHandler(t).Router()
 	for _, tc := range []struct {
 		query, warn string // warn: "" for none
 	}{
 		{"/v1/expansion/linear?length=1%20m&alpha=12e-6/K&delta_t=2000%20K", ""},
-		{"/v1/expansion/linear?length=1%20m&alpha=12e-6/K&delta_t=-2001%20K", "delta_t is -2001 K, wider than"},
+		{"/v1/expansion/linear?length=1%20m&alpha=12e-6/K&delta_t=-2001%20K", "delta_t is -2001 K, a change over 2000 K"},
+		{"/v1/expansion/linear?length=1%20m&alpha=12e-6/K&delta_t=3700%20degF", "delta_t is 3700 degF (2056 K), a change over 2000 K"},
+		{"/v1/expansion/linear?length=1%20m&alpha=12e-6/K&t_initial=-270%20degC&t_final=1999%20degC", "the change from t_initial to t_final is 2269 K, a change over 2000 K"},
 		{"/v1/expansion/linear?length=1%20m&alpha=12e-6/K&t_initial=20%20degC&t_final=2000%20degC", ""},
-		{"/v1/expansion/linear?length=1%20m&alpha=12e-6/K&t_initial=20%20degC&t_final=2001%20degC", "t_final is 2001 degC, hotter than"},
-		{"/v1/expansion/linear?length=1%20m&alpha=12e-6/K&t_initial=20%20degF&t_final=9000%20degF", "t_final is 9000 degF (4982.22 degC), hotter than"},
-		{"/v1/restraint?alpha=12e-6/K&delta_t=40%20K&modulus=210%20kPa&yield_strength=1%20MPa", "modulus is 210 kPa, softer than"},
+		{"/v1/expansion/linear?length=1%20m&alpha=12e-6/K&t_initial=20%20degC&t_final=2001%20degC", "t_final is 2001 degC, above 2000 degC"},
+		{"/v1/expansion/linear?length=1%20m&alpha=12e-6/K&t_initial=20%20degF&t_final=9000%20degF", "t_final is 9000 degF (4982.22 degC), above 2000 degC"},
+		{"/v1/restraint?alpha=12e-6/K&delta_t=40%20K&modulus=210%20kPa&yield_strength=1%20MPa", "modulus is 210 kPa, under 1 MPa"},
 		{"/v1/restraint?alpha=12e-6/K&delta_t=40%20K&modulus=1%20MPa&yield_strength=1%20MPa", ""},
 	} {
 		d := decode(t, do(t, r, http.MethodGet, tc.query, "", ""))

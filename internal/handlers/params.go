@@ -215,8 +215,9 @@ const (
 )
 
 // softest is the smallest Young's modulus read without a warning, 1 MPa:
-// elastomers are about that and stiffer, and 210 kPa is more often
-// 210 GPa mistyped than a material. Common practice, no published source.
+// below it lie sealants, foams and soft elastomers, and a modulus there is
+// more often a unit mistyped (210 kPa for 210 GPa) than one of them.
+// Common practice, no published source.
 const softest = 1e6 // Pa
 
 func dimMessage(err error, q units.Quantity, d units.Dim) string {
@@ -275,7 +276,7 @@ func (p *params) temperature(name string) (units.Temperature, bool) {
 		if q.Unit.Symbol != "degC" {
 			v += " (" + units.CelsiusText(t) + ")"
 		}
-		p.warnings = append(p.warnings, name+" is "+v+", hotter than structures, pipes and vessels get, fire included: check the value and its unit")
+		p.warnings = append(p.warnings, name+" is "+v+", above 2000 degC: hotter than structures, pipes and vessels get, fire included; check the value and its unit")
 	}
 	return t, true
 }
@@ -327,10 +328,19 @@ func (p *params) difference(name string) (units.TemperatureDifference, bool) {
 		return 0, false
 	}
 	p.inputs.addQuantity(name, q)
-	if math.Abs(float64(d)) > widest {
-		p.warnings = append(p.warnings, name+" is "+q.String()+", wider than the temperature changes structures, pipes and vessels meet, fire included: check the value and its unit")
-	}
+	p.checkWidth(name+" is "+q.String(), d)
 	return d, true
+}
+
+// checkWidth warns of a temperature change over widest; what names it.
+func (p *params) checkWidth(what string, d units.TemperatureDifference) {
+	if math.Abs(float64(d)) <= widest {
+		return
+	}
+	if !strings.HasSuffix(what, " K") {
+		what += " (" + formatRounded(float64(d)) + " K)"
+	}
+	p.warnings = append(p.warnings, what+", a change over 2000 K: wider than structures, pipes and vessels meet, fire included; check the value and its unit")
 }
 
 // number reads an optional dimensionless number: a JSON number, or a

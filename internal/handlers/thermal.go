@@ -40,6 +40,9 @@ func (p *params) interval(deltaName, initialName, finalName string) (interval, b
 		if !(ok1 && ok2) {
 			return interval{}, false
 		}
+		if max(t1, t2) <= hottest { // else the hot end was warned of
+			p.checkWidth("the change from "+initialName+" to "+finalName+" is "+formatRounded(float64(t2.Sub(t1)))+" K", t2.Sub(t1))
+		}
 		return interval{dT: t2.Sub(t1), t1: t1, t2: t2, absolute: true}, true
 	}
 	p.invalid(deltaName, "required: give "+deltaName+" (a temperature difference such as \"35 K\"), or "+initialName+" and "+finalName)
