@@ -147,7 +147,9 @@ func main() {
 			fmt.Fprintf(os.Stderr, "perf: -work %q: want positive durations up to 10ms, e.g. 10us,20us\n", f)
 			os.Exit(2)
 		}
-		c.work = append(c.work, d)
+		if !slices.Contains(c.work, d) {
+			c.work = append(c.work, d)
+		}
 	}
 	if err := run(c); err != nil {
 		fmt.Fprintln(os.Stderr, "perf:", err)
@@ -284,7 +286,7 @@ func run(c config) error {
 		}
 	}
 	if len(c.work) > 0 {
-		workBudget(res, others[len(others)-len(c.work):], c.work, b.rps, ratio)
+		workBudget(res, others[len(others)-len(c.work):], c.work, b.rps, medianOf(res[bare], serverCPU), ratio)
 	}
 
 	if c.inprocess && (c.cpuprofile != "" || c.memprofile != "") {

@@ -42,10 +42,11 @@ func secondsPerStep() float64 {
 // about linearly with the CPU a server adds per request: the slope is
 // fitted through (0, 1) by least squares, and gives the work the target
 // ratio leaves, and the work at which the bare server would match the
-// service's ratio.
-func workBudget(res map[*server][]result, servers []*server, work []time.Duration, bareRPS, serviceRatio float64) {
-	fmt.Println("work floors: the bare server spending a fixed amount of arithmetic per request (a busy loop timed at its")
-	fmt.Println("  start-up) before it answers the same bytes:")
+// service's ratio. The work is the busy loop's, timed alone; under load
+// each floor's measured CPU grows by more, which is printed beside it.
+func workBudget(res map[*server][]result, servers []*server, work []time.Duration, bareRPS float64, bareCPU time.Duration, serviceRatio float64) {
+	fmt.Println("work floors: the bare server spending a fixed amount of arithmetic per request (a busy loop timed alone at")
+	fmt.Println("  its start-up) before it answers the same bytes:")
 	var num, den float64
 	for i, s := range servers {
 		f := summarise(res[s])
@@ -53,7 +54,8 @@ func workBudget(res map[*server][]result, servers []*server, work []time.Duratio
 		w := micros(work[i])
 		num += w * (1/r - 1)
 		den += w * w
-		fmt.Printf("  %-10s median %9.0f req/s, ratio to bare %.3f, server CPU %.1f µs/req\n", s.name, f.rps, r, micros(medianOf(res[s], serverCPU)))
+		cpu := medianOf(res[s], serverCPU)
+		fmt.Printf("  %-10s median %9.0f req/s, ratio to bare %.3f, server CPU %.1f µs/req (%+.1f over bare)\n", s.name, f.rps, r, micros(cpu), micros(cpu-bareCPU))
 	}
 	slope := num / den
 	if slope <= 0 {
@@ -61,6 +63,10 @@ func workBudget(res map[*server][]result, servers []*server, work []time.Duratio
 		return
 	}
 	fmt.Printf("  read as a budget: the ratio %.2f leaves about %.0f µs of such work per request for all the service does\n", targetRatio, (1/targetRatio-1)/slope)
-	fmt.Printf("  beyond writing the bytes (router, middleware, calculation); at its ratio %.3f the service answers as the\n", serviceRatio)
-	fmt.Printf("  bare server doing about %.0f µs of it would\n", (1/serviceRatio-1)/slope)
+	fmt.Print("  beyond writing the bytes (router, middleware, calculation)")
+	if serviceRatio >= 1 {
+		fmt.Printf("; the service's ratio %.3f is at or above bare (noise?)\n", serviceRatio)
+		return
+	}
+	fmt.Printf("; at its ratio %.3f the service answers as the\n  bare server doing about %.0f µs of it would\n", serviceRatio, (1/serviceRatio-1)/slope)
 }
