@@ -234,8 +234,10 @@ func (a *LogPolynomialAlpha) Range() (units.Temperature, units.Temperature) { re
 // MeanTable is tabulated mean coefficients of linear expansion from a
 // reference temperature T0 (ASME BPVC II-D tables TE, column B; producers'
 // datasheets): a(T) = (L(T) - L(T0)) / (L(T0) (T - T0)). Between points
-// the mean coefficient is interpolated linearly in temperature, and the
-// reference itself (a = a of the nearest point) is allowed.
+// the mean coefficient is interpolated linearly in temperature. Between
+// the reference and the first point (a table from 20 degC whose first
+// point is 100 degC) the line of the first two points is extended, so the
+// range includes the reference.
 type MeanTable struct {
 	Ref    units.Temperature
 	Temps  []units.Temperature // rising
