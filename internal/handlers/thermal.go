@@ -113,7 +113,7 @@ func (p *params) strain(alphaName, materialName string, iv interval, ivOK bool, 
 	from := "catalogue " + m.ID + ", constant coefficient"
 	switch {
 	case e.Joined:
-		from = "catalogue " + m.ID + ", " + e.Kind + " curves joined at " + units.CelsiusText(e.Join)
+		from = "catalogue " + m.ID + ", " + e.Kind + " curves" // the method gives the join
 	case e.Kind != "constant":
 		from = "catalogue " + m.ID + ", " + e.Kind + " curve"
 	}
