@@ -314,8 +314,11 @@ func (in jointInput) checks(s calc.Setting) []Check {
 	}
 	gmax := s.GapAtTMaxM
 	add("gap_stays_open", gmax > 0, func(l func(float64) string) string {
-		if gmax > 0 {
+		switch {
+		case gmax > 0:
 			return "gap at t_max is " + l(gmax) + ", above zero"
+		case gmax == 0:
+			return "the gap closes exactly at t_max: the members touch there, and any warmer day makes them bear on each other; keep a gap above zero (min_gap)"
 		}
 		return "the joint closes before t_max: gap at t_max would be " + l(gmax) + "; the members bear on each other"
 	})

@@ -188,6 +188,20 @@ func TestJointGapFailingChecks(t *testing.T) {
 	}
 }
 
+// TestJointGapZeroMinGap: min_gap 0 sizes the gap to close exactly at
+// t_max (gap_install = closing, 25.2 mm by the arithmetic of AASHTO eq.
+// 3.12.2.3-1 above). The members touch there: the check fails, and its
+// detail says the gap closes at t_max, not before it.
+func TestJointGapZeroMinGap(t *testing.T) {
+	r, _ := jointRouter(t)
+	b := readJointBody(t, jointGet(t, r, "/v1/joints/gap", footbridge("t_install", "15 degC", "min_gap", "0 mm")))
+	jointWant(t, b, "gap_install", 25.2, "mm")
+	jointWant(t, b, "gap_at_t_max", 0, "mm")
+	if c := b.checks(t)["gap_stays_open"]; c.Pass || !strings.Contains(c.Detail, "closes exactly at t_max") {
+		t.Errorf("gap_stays_open = %+v, want a failing check saying the gap closes exactly at t_max", c)
+	}
+}
+
 func TestJointGapSealant(t *testing.T) {
 	r, _ := jointRouter(t)
 	// Demo data: a 4 m aluminium facade panel, surface -20 degC to 80 degC,
