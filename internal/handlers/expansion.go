@@ -361,6 +361,13 @@ func (h *Handler) volume(p *params) (*Response, error) {
 			break
 		}
 		b := liquid.Beta
+		beyond := iv.absolute && len(liquid.BetaWarnings(iv.t1, iv.t2)) > 0
+		if beyond && !extra {
+			// As for a solid with a constant only: its range is all the
+			// data there is (and past it a liquid may boil or freeze).
+			p.unprocessable("material", liquid.BetaWarnings(iv.t1, iv.t2)[0]+"; set extrapolate=true to extrapolate, or give beta")
+			break
+		}
 		r, ok = calc.VolumeBeta(vol, b.Value, iv.dT), vok
 		res.BetaMean = si(b.Value)
 		p.inputs.addUsed("beta", b.Value, "1/K", "material "+liquid.ID)
@@ -368,8 +375,10 @@ func (h *Handler) volume(p *params) (*Response, error) {
 			resp.Method = "dV = beta V0 dT with the constant mean volumetric coefficient of " + liquid.ID
 			resp.References = append(resp.References, b.Citations...)
 		}
-		if iv.absolute {
+		if beyond {
 			resp.Warnings = append(resp.Warnings, liquid.BetaWarnings(iv.t1, iv.t2)...)
+		} else if !iv.absolute {
+			resp.Warnings = append(resp.Warnings, liquid.BetaDeltaWarnings(iv.dT)...)
 		}
 	default:
 		co, cok := p.strain("alpha", "material", iv, ivOK, model, extra)

@@ -385,3 +385,31 @@ func TestImplausibleInputsWarn(t *testing.T) {
 		}
 	}
 }
+
+// TestLiquidBeyondItsRange: a liquid with a constant volumetric
+// coefficient only follows the rule of a solid with a constant only: an
+// interval outside the coefficient's range is a 422 naming material
+// unless extrapolate=true, and then it warns; a difference wider than the
+// range warns. Demo data: 1 m3 of ethanol in a demo tank. dV = beta V0 dT
+// (volumetric form of ASTM E228's mean coefficient, from memory) with the
+// catalogue's 1.1e-3/K (handbook value at 20 degC, from memory of the CRC
+// Handbook): 70 K gives 77 L.
+func TestLiquidBeyondItsRange(t *testing.T) {
+	r := newTestHandler(t).Router()
+	base := "/v1/expansion/volume?volume=1%20m3&material=ethanol"
+	w := do(t, r, http.MethodGet, base+"&t_initial=20%20degC&t_final=90%20degC", "", "")
+	if p := decodeProblem(t, w); w.Code != http.StatusUnprocessableEntity || len(p.Errors) != 1 || p.Errors[0].Parameter != "material" || !strings.Contains(p.Errors[0].Detail, "extrapolate=true") {
+		t.Errorf("ethanol 20..90 degC: status %d, errors %+v; want 422 naming material and extrapolate=true", w.Code, p.Errors)
+	}
+	for _, q := range []string{"&t_initial=20%20degC&t_final=90%20degC&extrapolate=true", "&delta_t=70%20K"} {
+		d := decode(t, do(t, r, http.MethodGet, base+q, "", ""))
+		checkResult(t, d, "delta_volume", 77, "L", 1e-9, len(standingCautions))
+		if !anyContains(d.Warnings, "volumetric coefficient of ethanol holds for") {
+			t.Errorf("%s: warnings %q, want one on the coefficient's range", q, d.Warnings)
+		}
+	}
+	d := decode(t, do(t, r, http.MethodGet, base+"&t_initial=10%20degC&t_final=35%20degC", "", ""))
+	if len(d.Warnings) != 0 {
+		t.Errorf("ethanol within 0..40 degC: warnings %q, want none", d.Warnings)
+	}
+}

@@ -137,12 +137,18 @@ func (m *Material) LinearDelta(dT units.TemperatureDifference) (Expansion, error
 		return Expansion{}, fmt.Errorf("%s is a liquid: it has a volumetric coefficient, not a linear one", m.ID)
 	}
 	e := m.constant(dT)
-	if a := m.Alpha; a.HasRange && math.Abs(float64(dT)) > float64(a.TMax.Sub(a.TMin))+1e-9 { // within, as within() allows
-		// No interval of this size fits in the range, wherever it lies.
-		e.Warnings = append(e.Warnings, fmt.Sprintf("a change of %s K is wider than %s, the range the constant coefficient of %s holds for, so it cannot lie within it; the movement is extrapolated (give t_initial and t_final to have the interval checked)",
-			units.FormatNumber(math.Abs(float64(dT))), span(a.TMin, a.TMax), m.ID))
-	}
+	e.Warnings = wider(m.Alpha, dT, "constant coefficient", m.ID)
 	return e, nil
+}
+
+// wider warns when no interval of dT fits in the range of c, wherever it
+// lies: the coefficient is extrapolated. what names the coefficient.
+func wider(c *Coefficient, dT units.TemperatureDifference, what, id string) []string {
+	if !c.HasRange || math.Abs(float64(dT)) <= float64(c.TMax.Sub(c.TMin))+1e-9 { // within, as within() allows
+		return nil
+	}
+	return []string{fmt.Sprintf("a change of %s K is wider than %s, the range the %s of %s holds for, so it cannot lie within it; the expansion is extrapolated (give t_initial and t_final to have the interval checked)",
+		units.FormatNumber(math.Abs(float64(dT))), span(c.TMin, c.TMax), what, id)}
 }
 
 // chain returns the strain from t1 to t2 over two curves whose ranges
@@ -217,6 +223,15 @@ func (m *Material) curve(c Curve, t1, t2 units.Temperature) Expansion {
 		e.AlphaMean = calc.IntervalStrain(c, t1.Add(-units.TemperatureDifference(h)), t1.Add(units.TemperatureDifference(h))) / (2 * h)
 	}
 	return e
+}
+
+// BetaDeltaWarnings returns the warnings for a liquid's constant
+// volumetric coefficient used over the difference dT.
+func (m *Material) BetaDeltaWarnings(dT units.TemperatureDifference) []string {
+	if m.Beta == nil {
+		return nil
+	}
+	return wider(m.Beta, dT, "volumetric coefficient", m.ID)
 }
 
 // BetaWarnings returns the warnings for a liquid's constant volumetric
