@@ -413,3 +413,22 @@ func TestLiquidBeyondItsRange(t *testing.T) {
 		t.Errorf("ethanol within 0..40 degC: warnings %q, want none", d.Warnings)
 	}
 }
+
+// TestSameScaleDifferenceExact: 50 to 100 degF is the change 50 degF, to
+// the last digit: 12e-6/K x 48 m x 50 x 5/9 K = 16 mm (1 degF = 5/9 K,
+// NIST SP 811, from memory). Mixed scales still meet at one temperature:
+// -40 degF is -40 degC.
+func TestSameScaleDifferenceExact(t *testing.T) {
+	r := newTestHandler(t).Router()
+	for q, want := range map[string]string{
+		"t_initial=50%20degF&t_final=100%20degF":  "16",
+		"delta_t=50%20degF":                       "16",
+		"t_initial=-40%20degF&t_final=-40%20degC": "0",
+		"t_initial=59%20degF&t_final=60.8%20degF": "0.576",
+	} {
+		w := do(t, r, http.MethodGet, "/v1/expansion/linear?length=48%20m&alpha=12e-6/K&format=text&"+q, "", "")
+		if got := strings.TrimSpace(w.Body.String()); w.Code != http.StatusOK || got != want {
+			t.Errorf("%s: %d %q, want %q exactly", q, w.Code, got, want)
+		}
+	}
+}

@@ -702,3 +702,24 @@ func TestScheduleStepAlias(t *testing.T) {
 		t.Errorf("both names: status %d, errors %+v; want one 422 on delta_t_install_step", w.Code, pr.Errors)
 	}
 }
+
+// TestJointGapFahrenheitExact: temperatures read on one scale keep their
+// differences exact, so a joint set mid-range closes and opens alike to
+// the last written digit. AASHTO LRFD eq. 3.12.2.3-1 with the steel
+// coefficient 6.5e-6/degF of Article 6.4.1 (both from memory, not
+// re-read): 100 ft from 0 to 120 degF moves 6.5e-6 x 1200 in x 120 =
+// 0.936 in, 0.468 in each way from 60 degF. Demo data.
+func TestJointGapFahrenheitExact(t *testing.T) {
+	r, _ := jointRouter(t)
+	w := jointGet(t, r, "/v1/joints/gap", jq("length", "100 ft", "alpha", "6.5e-6/degF", "t_min", "0 degF", "t_max", "120 degF", "t_install", "60 degF", "min_gap", "1 in", "units", "us", "format", "csv"))
+	rows := readCSV(t, w.Body.Bytes())
+	got := map[string]string{}
+	for i, h := range rows[0] {
+		got[h] = rows[1][i]
+	}
+	for k, want := range map[string]string{"movement_range [in]": "0.936", "closing [in]": "0.468", "opening [in]": "0.468", "gap_install [in]": "1.468"} {
+		if got[k] != want {
+			t.Errorf("%s = %q, want %q exactly", k, got[k], want)
+		}
+	}
+}

@@ -66,6 +66,23 @@ func (q Quantity) Temperature() (Temperature, error) {
 	return Temperature(k), nil
 }
 
+// TemperatureBeside returns q as an absolute temperature placed beside
+// ref, a reading on the same scale already converted to refK: refK plus
+// the difference of the two readings. Differences of readings on one
+// scale then come out as the scale gives them (120 degF less 60 degF is
+// 60 x 5/9 K to the last digit), which two conversions to kelvin, each
+// rounded to the nanokelvin, do not keep. On another scale than ref's it
+// is Temperature.
+func (q Quantity) TemperatureBeside(ref Quantity, refK Temperature) (Temperature, error) {
+	t, err := q.Temperature() // the checks, and the value on another scale
+	if err != nil || q.Unit.Offset != ref.Unit.Offset || q.Unit.Factor != ref.Unit.Factor || !ref.Unit.scale {
+		return t, err
+	}
+	// At or above 0 K, as Temperature found: refK's rounding may not take
+	// a reading at absolute zero below it.
+	return Temperature(max(float64(refK)+(q.Value-ref.Value)*q.Unit.Factor, 0)), nil
+}
+
 // TemperatureDifference returns q as a temperature difference: 10 degF
 // here is 50/9 K, whatever the scale's zero.
 func (q Quantity) TemperatureDifference() (TemperatureDifference, error) {

@@ -588,6 +588,46 @@ func TestTemperatureSameOnEveryScale(t *testing.T) {
 	}
 }
 
+// TestTemperatureBeside: a reading placed beside another on its scale
+// differs from it by the scale's difference to the last bits (1 degF = 5/9 K,
+// NIST SP 811, from memory); on another scale it is converted alone, so
+// -40 degC beside -40 degF is the same temperature; absolute zero on the
+// reference's scale stays at 0 K, and below it is refused as before.
+func TestTemperatureBeside(t *testing.T) {
+	parse := func(s string) units.Quantity {
+		q, err := units.Parse(s)
+		if err != nil {
+			t.Fatalf("Parse(%q): %v", s, err)
+		}
+		return q
+	}
+	ref := parse("0 degF")
+	refK, _ := ref.Temperature()
+	for _, tc := range []struct {
+		s    string
+		want float64 // kelvin from refK, or -1 for 0 K exactly
+	}{{"120 degF", 120.0 * 5 / 9}, {"60 degF", 60.0 * 5 / 9}, {"-459.67 degF", -1}} {
+		k, err := parse(tc.s).TemperatureBeside(ref, refK)
+		switch {
+		case err != nil:
+			t.Errorf("%s: %v", tc.s, err)
+		case tc.want == -1 && k != 0:
+			t.Errorf("%s beside 0 degF = %v K, want 0", tc.s, float64(k))
+		case tc.want != -1 && math.Abs(float64(k.Sub(refK))-tc.want) > 1e-12:
+			// A few units in the last place of 255 K; two roundings to
+			// the nanokelvin could miss by 1e-9.
+			t.Errorf("%s beside 0 degF: %v K from it, want %v", tc.s, float64(k.Sub(refK)), tc.want)
+		}
+	}
+	other, _ := parse("-40 degF").Temperature()
+	if k, _ := parse("-40 degC").TemperatureBeside(ref, refK); k != other {
+		t.Errorf("-40 degC beside 0 degF = %v K, want %v K as alone", float64(k), float64(other))
+	}
+	if _, err := parse("-460 degF").TemperatureBeside(ref, refK); !errors.Is(err, units.ErrBelowZero) {
+		t.Errorf("-460 degF beside 0 degF: %v, want ErrBelowZero", err)
+	}
+}
+
 func TestTemperatureErrors(t *testing.T) {
 	cases := []struct {
 		in   string
