@@ -110,6 +110,29 @@ func (h *Handler) cite(p *params, resp *Response, co coefficient) {
 	resp.References = append(resp.References, co.Source.Citations...)
 }
 
+// waterCritical is the critical temperature of water, 647.096 K
+// (IAPWS-95, from memory): above it there is no liquid to expand.
+const waterCritical = units.Temperature(647.096)
+
+// waterBeyond names the temperature of an extrapolated water interval
+// that Kell's equation cannot be taken to, and says why: above the
+// critical point, or where the polynomial gives no positive density.
+func waterBeyond(iv interval, rho1, rho2 float64) (name, why string) {
+	for _, e := range [...]struct {
+		name string
+		t    units.Temperature
+		rho  float64
+	}{{"t_initial", iv.t1, rho1}, {"t_final", iv.t2, rho2}} {
+		switch {
+		case e.t > waterCritical:
+			return e.name, units.CelsiusText(e.t) + " is above the critical point of water, " + units.CelsiusText(waterCritical) + ": there is no liquid to expand"
+		case e.t <= calc.KellPole || !(e.rho > 0) || math.IsInf(e.rho, 0):
+			return e.name, "Kell's equation gives no density of water at " + units.CelsiusText(e.t) + " (its denominator is zero at " + units.CelsiusText(calc.KellPole) + " and negative below)"
+		}
+	}
+	return "", ""
+}
+
 // AreaResults are the results of /v1/expansion/area.
 type AreaResults struct {
 	DeltaArea       *Value `json:"delta_area" kind:"area-change"`
@@ -342,6 +365,10 @@ func (h *Handler) volume(p *params) (*Response, error) {
 					break
 				}
 				rho1, rho2 = calc.WaterDensityAnyT(iv.t1), calc.WaterDensityAnyT(iv.t2)
+				if name, why := waterBeyond(iv, rho1, rho2); name != "" {
+					p.unprocessable(name, why+"; extrapolate=true cannot reach it")
+					break
+				}
 				resp.Warnings = append(resp.Warnings, "extrapolated beyond 0..150 degC, the range of Kell's equation; water may freeze or boil there")
 			}
 			if hot := units.Celsius(100); iv.t1 > hot || iv.t2 > hot {
