@@ -2,6 +2,7 @@ package handlers
 
 import (
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -361,6 +362,40 @@ type RestraintResults struct {
 	BucklingUtilisation *Value `json:"buckling_utilisation,omitempty" kind:"ratio"`
 	GradientCurvature   *Value `json:"gradient_curvature,omitempty" kind:"curvature"`
 	EndMoment           *Value `json:"end_moment,omitempty" kind:"moment"`
+
+	// stressNotes are the warnings that quote stresses, written in MPa
+	// and rewritten by render in the answer's stress unit.
+	stressNotes []stressNote
+}
+
+// stressNote is a warning that quotes stresses: si is its text in MPa,
+// as the response's warnings hold it (other warnings may come before it
+// later), text writes it with a stress formatter.
+type stressNote struct {
+	si   string
+	text func(stress func(pa float64) string) string
+}
+
+// warnStress adds a warning that quotes stresses, in MPa until render
+// writes it in the unit of the answer's stress.
+func (r *RestraintResults) warnStress(resp *Response, text func(stress func(pa float64) string) string) {
+	n := stressNote{si: text(mpa), text: text}
+	r.stressNotes = append(r.stressNotes, n)
+	resp.Warnings = append(resp.Warnings, n.si)
+}
+
+// render writes the warnings that quote stresses in the unit of the
+// answer's stress (psi with units=us, or stress_unit), and leaves the body
+// to the generic formats.
+func (r *RestraintResults) render(out *outputOptions, resp *Response) ([]byte, string, error) {
+	u := out.unitFor(resultField{name: "stress", kind: units.StressKind})
+	stress := func(pa float64) string { return formatRounded(units.FromSI(pa, u)) + " " + u.Symbol }
+	for _, n := range r.stressNotes {
+		if i := slices.Index(resp.Warnings, n.si); i >= 0 {
+			resp.Warnings[i] = n.text(stress)
+		}
+	}
+	return nil, "", nil
 }
 
 // restraint godoc
@@ -517,6 +552,9 @@ func (h *Handler) restraint(p *params) (*Response, error) {
 	fyFrom := ""
 	if p.has("yield_strength") {
 		fy, hasFy = p.positive("yield_strength", units.Stress)
+		if hasFy && fy < softest {
+			p.warnings = append(p.warnings, "yield_strength is "+formatRounded(fy/1e3)+" kPa, under 1 MPa: weaker than any structural material; check the unit (MPa?)")
+		}
 		fyFrom = "request"
 	} else if m := peekMaterial(p, "material"); m != nil && m.Yield != nil {
 		fy, hasFy, fyFrom = m.Yield.Value, true, "catalogue "+m.ID
@@ -562,7 +600,9 @@ func (h *Handler) restraint(p *params) (*Response, error) {
 			res.YieldDeltaT = si(fy / math.Abs(d))
 		}
 		if s := math.Abs(st.StressPa); s > fy {
-			resp.Warnings = append(resp.Warnings, "the restrained stress "+mpa(s)+" exceeds the yield strength "+mpa(fy)+" ("+fyFrom+"): the member yields, the elastic stress and force are upper bounds, and an Euler buckling temperature overestimates the real one")
+			res.warnStress(resp, func(f func(float64) string) string {
+				return "the restrained stress " + f(s) + " exceeds the yield strength " + f(fy) + " (" + fyFrom + "): the member yields, the elastic stress and force are upper bounds, and an Euler buckling temperature overestimates the real one"
+			})
 		}
 	} else if st.StressPa != 0 {
 		// No capacity to compare with: an empty list of warnings must not
@@ -576,7 +616,10 @@ func (h *Handler) restraint(p *params) (*Response, error) {
 		if m := peekMaterial(p, "material"); m != nil {
 			none = "the catalogue has none for " + m.ID
 		}
-		resp.Warnings = append(resp.Warnings, "the restrained stress "+mpa(math.Abs(st.StressPa))+" ("+kind+") is not checked against any strength: no yield_strength was given and "+none+"; compare it with the member's capacity (a brittle material such as concrete, masonry or glass cracks in tension at a few MPa)")
+		s := math.Abs(st.StressPa)
+		res.warnStress(resp, func(f func(float64) string) string {
+			return "the restrained stress " + f(s) + " (" + kind + ") is not checked against any strength: no yield_strength was given and " + none + "; compare it with the member's capacity (a brittle material such as concrete, masonry or glass cracks in tension at a few MPa)"
+		})
 	}
 
 	if buckling {
@@ -602,7 +645,9 @@ func (h *Handler) restraint(p *params) (*Response, error) {
 				}
 			}
 			if hasFy && calc.EulerStress(e, radius, kFactor, length) > fy {
-				resp.Warnings = append(resp.Warnings, "the Euler critical stress exceeds the yield strength "+mpa(fy)+": the strut yields before it buckles elastically, so critical_delta_t overestimates the real critical rise (inelastic buckling)")
+				res.warnStress(resp, func(f func(float64) string) string {
+					return "the Euler critical stress exceeds the yield strength " + f(fy) + ": the strut yields before it buckles elastically, so critical_delta_t overestimates the real critical rise (inelastic buckling)"
+				})
 			}
 		}
 		if co.Kind != "constant" {
@@ -626,6 +671,5 @@ func (h *Handler) restraint(p *params) (*Response, error) {
 }
 
 // mpa formats a stress in MPa for a message.
-func mpa(pa float64) string {
-	return units.FormatNumber(math.Round(pa/1e4)/100) + " MPa"
-}
+// mpa writes a stress in MPa to four significant digits, for messages.
+func mpa(pa float64) string { return formatRounded(pa/1e6) + " MPa" }

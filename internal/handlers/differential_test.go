@@ -309,3 +309,29 @@ func TestBilayerNoMismatch(t *testing.T) {
 		t.Errorf("a straight strip has a radius: %v", d.Results["radius"])
 	}
 }
+
+// TestRestraintWarningsInAnswerUnits: the warnings that quote stresses use
+// the unit of the answer's stress. sigma = E alpha dT (Hooke's law with
+// the thermal strain, from memory of Timoshenko and Goodier): 29000 ksi x
+// 12e-6/K x 100 degF (55.56 K, NIST SP 811: 1 degF = 5/9 K) = 19333 psi,
+// quoted to four digits. A yield strength under 1 MPa (355 mPa for
+// 355 MPa) warns to check the unit, and the stress warning after it is
+// still rewritten.
+func TestRestraintWarningsInAnswerUnits(t *testing.T) {
+	r := newTestHandler(t).Router()
+	for _, tc := range []struct{ query, want, not string }{
+		{"alpha=12e-6/K&modulus=29000%20ksi&delta_t=100%20degF&units=us", "the restrained stress 19330 psi (compression)", "MPa (compression)"},
+		{"alpha=12e-6/K&modulus=29000%20ksi&delta_t=100%20degF&stress_unit=ksi", "the restrained stress 19.33 ksi (compression)", "MPa (compression)"},
+		{"alpha=12e-6/K&modulus=29000%20ksi&delta_t=100%20degF", "the restrained stress 133.3 MPa (compression)", "psi"},
+		{"material=structural-steel&delta_t=40%20K&yield_strength=355%20mPa&units=us", "exceeds the yield strength 0.00005149 psi", "MPa exceeds"},
+	} {
+		d := decode(t, do(t, r, "GET", "/v1/restraint?"+tc.query, "", ""))
+		if !anyContains(d.Warnings, tc.want) || anyContains(d.Warnings, tc.not) {
+			t.Errorf("%s: warnings %q; want %q and not %q", tc.query, d.Warnings, tc.want, tc.not)
+		}
+	}
+	d := decode(t, do(t, r, "GET", "/v1/restraint?material=structural-steel&delta_t=40%20K&yield_strength=355%20mPa", "", ""))
+	if len(d.Warnings) != 2 || !strings.Contains(d.Warnings[0], "yield_strength is 0.000355 kPa, under 1 MPa") {
+		t.Errorf("355 mPa: warnings %q; want the unit check first, then the stress", d.Warnings)
+	}
+}

@@ -214,10 +214,10 @@ const (
 	widest  = 2000.0  // K
 )
 
-// softest is the smallest Young's modulus read without a warning, 1 MPa:
-// below it lie sealants, foams and soft elastomers, and a modulus there is
-// more often a unit mistyped (210 kPa for 210 GPa) than one of them.
-// Common practice, no published source.
+// softest is the smallest Young's modulus or yield strength read without
+// a warning, 1 MPa: below it lie sealants, foams and soft elastomers, and
+// a value there is more often a unit mistyped (210 kPa for 210 GPa, 355
+// mPa for 355 MPa) than one of them. Common practice, no published source.
 const softest = 1e6 // Pa
 
 func dimMessage(err error, q units.Quantity, d units.Dim) string {
