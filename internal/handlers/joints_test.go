@@ -377,6 +377,16 @@ func TestJointSpacing(t *testing.T) {
 	b = readJointBody(t, jointGet(t, r, "/v1/joints/spacing", jq("thickness", "6 in", "units", "us")))
 	jointWant(t, b, "spacing_min", 12, "ft")
 	jointWant(t, b, "spacing_max", 18, "ft")
+	// 18 ft (5.49 m) is at about the largest spacing usual for plain slabs
+	// (5.5 m, from memory of ACI 360R, not re-read): no warning; 200 mm's
+	// 7.2 m is beyond it and warns.
+	if len(b.Warnings) != 0 {
+		t.Errorf("6 in slab: warnings %q, want none", b.Warnings)
+	}
+	b = readJointBody(t, jointGet(t, r, "/v1/joints/spacing", jq("thickness", "200 mm")))
+	if len(b.Warnings) != 1 || !strings.Contains(b.Warnings[0], "spacing_max 7.2 m is beyond about 5.5 m") {
+		t.Errorf("200 mm slab: warnings %q, want one on the 5.5 m limit", b.Warnings)
+	}
 }
 
 // scheduleRows reads the rows of a schedule response.
