@@ -412,3 +412,22 @@ func TestVolumeBadBetaNamesOnlyBeta(t *testing.T) {
 		}
 	}
 }
+
+// TestFaultsBesideAConflict: a conflict does not hide a bad value beside
+// it, and a missing container coefficient is named once.
+func TestFaultsBesideAConflict(t *testing.T) {
+	r := newTestHandler(t).Router()
+	w := do(t, r, http.MethodGet, "/v1/expansion/linear?length=48%20m&alpha=12e-6/K&delta_t=50%20K&t_initial=20%20mm4", "", "")
+	p := decodeProblem(t, w)
+	named := map[string]bool{}
+	for _, e := range p.Errors {
+		named[e.Parameter] = true
+	}
+	if w.Code != http.StatusBadRequest || !named["t_initial"] || !named["delta_t"] {
+		t.Errorf("delta_t beside t_initial=20 mm4: status %d, errors %+v; want 400 naming t_initial (its unit) and delta_t (the conflict)", w.Code, p.Errors)
+	}
+	w = do(t, r, http.MethodGet, "/v1/expansion/volume?volume=2.5%20m3&material=water&t_initial=10%20degC&t_final=80%20degC&vessel_volume=3%20m3", "", "")
+	if p := decodeProblem(t, w); w.Code != http.StatusBadRequest || len(p.Errors) != 1 || p.Errors[0].Parameter != "vessel_alpha" {
+		t.Errorf("vessel_volume without its coefficient: status %d, errors %+v; want one error on vessel_alpha", w.Code, p.Errors)
+	}
+}

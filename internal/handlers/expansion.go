@@ -427,14 +427,17 @@ func (h *Handler) volume(p *params) (*Response, error) {
 	// The container.
 	var vessel *calc.Vessel
 	if p.has("vessel_alpha") || p.has("vessel_material") || p.has("vessel_volume") {
-		if !p.has("vessel_alpha") && !p.has("vessel_material") {
-			p.invalid("vessel_alpha", "required with vessel_volume: give vessel_alpha or vessel_material")
-		}
 		capacity := vol
 		if c, cok := p.positive("vessel_volume", units.Volume); cok {
 			capacity = c
 		}
-		vco, vcok := p.strain("vessel_alpha", "vessel_material", iv, ivOK, model, extra)
+		var vco coefficient
+		vcok := false
+		if !p.has("vessel_alpha") && !p.has("vessel_material") {
+			p.invalid("vessel_alpha", "required with vessel_volume: give vessel_alpha or vessel_material")
+		} else {
+			vco, vcok = p.strain("vessel_alpha", "vessel_material", iv, ivOK, model, extra)
+		}
 		if vcok && ok {
 			v := calc.InVessel(capacity, vco.Strain, r.FinalVolumeM3)
 			vessel = &v

@@ -21,9 +21,10 @@ func (p *params) interval(deltaName, initialName, finalName string) (interval, b
 	switch {
 	case hasDelta && hasAbs:
 		p.unprocessable(deltaName, "contradicts "+initialName+"/"+finalName+": give "+deltaName+", or "+initialName+" and "+finalName+", not both")
-		p.take(initialName)
-		p.take(finalName)
-		p.take(deltaName)
+		// Each is still read, so that a bad value among them is named too.
+		p.difference(deltaName)
+		p.temperature(initialName)
+		p.temperature(finalName)
 		return interval{}, false
 	case hasDelta:
 		d, ok := p.difference(deltaName)
