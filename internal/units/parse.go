@@ -91,13 +91,15 @@ func (q Quantity) String() string {
 //
 //	quantity = number [" "] unit
 //	number   = ["+" | "-"] (digits ["." [digits]] | "." digits) [("e" | "E") ["+" | "-"] digits]
-//	unit     = ["/"] term {("*" | "." | "·" | "/") term}
+//	unit     = ["/"] term {("*" | "." | "·" | " " | "/") term}
 //	term     = symbol [exponent] | "1" | "(" unit ")" [exponent]
 //	exponent = digits | "-" digits | "^" ["+" | "-"] digits | "²" | "³" | "⁴"
 //	symbol   = an entry of the unit table, optionally after an SI prefix
 //
 // Multiplication and division associate to the left, so "um/m/K" is
-// micrometre per metre per kelvin. A leading "/" (UCUM style, "12e-6/K")
+// micrometre per metre per kelvin. A space between two terms multiplies
+// ("N m", "mm/(m K)") where no "/" came before it in its group: "mm/m K"
+// is refused as ambiguous. A leading "/" (UCUM style, "12e-6/K")
 // means one over the rest. A digit run straight after a symbol is its
 // exponent ("mm2", "cm4"). Hexadecimal, NaN and infinite numbers are
 // refused, as are numbers too large for a float64.
@@ -326,6 +328,7 @@ func (p *unitParser) expr() (float64, Dim, error) {
 		div = true
 		p.i++
 	}
+	divided := div // a "/" came before, at this level
 	for {
 		f, d, err := p.term()
 		if err != nil {
@@ -353,8 +356,15 @@ func (p *unitParser) expr() (float64, Dim, error) {
 			div = false
 			p.i += len("·")
 		case p.s[p.i] == '/':
-			div = true
+			div, divided = true, true
 			p.i++
+		case p.s[p.i-1] == ' ' && (p.s[p.i] == '(' || isSymbolByte(p.s, p.i)):
+			// A space between two terms multiplies, as in "N m" and
+			// "mm/(m K)"; after a "/" it would be ambiguous ("mm/m K").
+			if divided {
+				return 0, Dim{}, p.fail(ErrSyntax, "a space after \"/\" is ambiguous: write the divisor in parentheses, such as \"mm/(m K)\", or use \"*\" or \".\"")
+			}
+			div = false
 		default:
 			return factor, dim, nil
 		}
