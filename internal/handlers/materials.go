@@ -94,7 +94,7 @@ func (h *Handler) listMaterials(c *gin.Context) {
 func (h *Handler) getMaterial(c *gin.Context) {
 	m, err := h.cat.Get(c.Param("id"))
 	if err != nil {
-		h.problem(c, nil, newError(errNotFound, "no material with that id; GET /v1/materials lists the ids"))
+		h.problem(c, nil, newError(errNotFound, "no material with that id"+didYouMean(h.cat.Suggest(c.Param("id")))+"; GET /v1/materials lists the ids"))
 		return
 	}
 	sendJSON(c, http.StatusOK, h.materialInfo(m))

@@ -422,11 +422,19 @@ func (p *params) material(name string) (*materials.Material, bool) {
 	}
 	m, err := p.cat.Get(id)
 	if err != nil {
-		p.fail(errNotFound, name, "unknown material "+units.Quote(id)+"; GET /v1/materials lists the ids")
+		p.fail(errNotFound, name, "unknown material "+units.Quote(id)+didYouMean(p.cat.Suggest(id))+"; GET /v1/materials lists the ids")
 		return nil, false
 	}
 	p.inputs.addText(name, id)
 	return m, true
+}
+
+// didYouMean words the suggestions for a mistyped id, or "".
+func didYouMean(ids []string) string {
+	if len(ids) == 0 {
+		return ""
+	}
+	return " (did you mean " + strings.Join(ids, ", ") + "?)"
 }
 
 // require records a missing parameter when none of names was sent.

@@ -125,6 +125,57 @@ func (c *Catalogue) Get(id string) (*Material, error) {
 	return m, nil
 }
 
+// Suggest returns up to four ids a mistyped id may have meant: the id
+// itself in another case, ids that contain it ("steel"), and ids a letter
+// or two away from it ("aluminum-6061", the US spelling). Common practice
+// of search boxes; nothing here decides a calculation.
+func (c *Catalogue) Suggest(id string) []string {
+	q := strings.ToLower(strings.TrimSpace(id))
+	if q == "" {
+		return nil
+	}
+	var out []string
+	for _, m := range c.list {
+		if len(out) == 4 {
+			break
+		}
+		if m.ID == q || strings.Contains(m.ID, q) || editDistance(q, m.ID, 2) <= 2 {
+			out = append(out, m.ID)
+		}
+	}
+	return out
+}
+
+// editDistance is the Levenshtein distance of a and b, or max+1 once it
+// is sure to be above max.
+func editDistance(a, b string, max int) int {
+	if d := len(a) - len(b); d > max || -d > max {
+		return max + 1
+	}
+	prev := make([]int, len(b)+1)
+	cur := make([]int, len(b)+1)
+	for j := range prev {
+		prev[j] = j
+	}
+	for i := 1; i <= len(a); i++ {
+		cur[0] = i
+		best := cur[0]
+		for j := 1; j <= len(b); j++ {
+			cost := 1
+			if a[i-1] == b[j-1] {
+				cost = 0
+			}
+			cur[j] = min(prev[j]+1, cur[j-1]+1, prev[j-1]+cost)
+			best = min(best, cur[j])
+		}
+		if best > max {
+			return max + 1
+		}
+		prev, cur = cur, prev
+	}
+	return prev[len(b)]
+}
+
 // All returns every material, sorted by id.
 func (c *Catalogue) All() []*Material { return c.list }
 

@@ -278,3 +278,19 @@ func TestChainedCurves(t *testing.T) {
 		t.Errorf("stainless-steel-304 -40..60 degC = %+v, %v; want the NIST fit joined to the mean table", e, err)
 	}
 }
+
+// TestSuggest: a mistyped id gets the ids it may have meant (common
+// practice of search boxes, no published source; nothing is computed
+// from it).
+func TestSuggest(t *testing.T) {
+	c := load(t)
+	for _, tc := range []struct {
+		id   string
+		want string // an id that must be suggested; "" for none at all
+	}{{"aluminum-6061", "aluminium-6061"}, {"Structural-Steel", "structural-steel"}, {"steel", "stainless-steel-304"}, {"concret", "concrete"}, {"xyz", ""}, {"", ""}} {
+		got := c.Suggest(tc.id)
+		if tc.want == "" && len(got) != 0 || tc.want != "" && !slices.Contains(got, tc.want) || len(got) > 4 {
+			t.Errorf("Suggest(%q) = %q, want %q among at most four", tc.id, got, tc.want)
+		}
+	}
+}
