@@ -86,6 +86,7 @@ func (h *Handler) batchRoutes() []route {
 //	@Description	In: text/csv with a header row of parameter names and one case a row (an empty cell leaves the parameter out; a UTF-8 byte-order mark is allowed), or application/json with an array of request objects (the members of a single POST).
 //	@Description	Parameters in the query string (other than the output options) apply to every row; a row that gives one too is an error of that row.
 //	@Description	Out: CSV or JSON as format= asks, else as Accept asks (text/csv or application/json), else the form of the body. Each row has every input column as sent, then every result column with its unit in the name (`delta_length [mm]`; units by units= and <result>_unit=, empty or null where a result is not computed for the row), then for joints/gap a check_<name> column per check (pass, fail, or empty where the row has no such check), then `warnings`, `cautions` (each caution once, in the first row it applies to; the standing ones in the first row) and `error` (empty where the row computed). A JSON answer is an array of flat objects with exactly these keys, a table like the CSV. With a JSON body and a CSV answer the columns are the members of the first element.
+//	@Description	Columns (or members) named id, ref, label, name, note, notes, comment or description (any case), or beginning with "#", label the rows: they are echoed and never read.
 //	@Description	One bad row never fails the batch: its error column says what is wrong, in the words of the single request's problem detail. A CSV header column or query parameter the calculation does not take is a 400 problem naming it, since every row would be refused for it (decided by the first row that reaches the calculation, when unknown parameters are all it is refused for).
 //	@Description	Limits: rows (--batch-max-rows, default 100000) and body bytes (--batch-max-bytes, default 32 MiB). The answer streams: rows are computed and sent as they are read, so memory stays flat. A limit reached before 64 KiB of answer is ready is a 413 problem; after that the status line has been sent, so the answer ends with one more row whose error begins "batch stopped after row N:" and whose other cells are empty, and the trailer Batch-Status says "stopped after row N: ..." (else "complete: N rows"). A body whose Content-Length is over the byte limit is refused with 413 at once.
 //	@Description	Demo example: three bays of a warehouse slab, `length,material,t_initial,t_final` / `30 m,concrete,15 degC,-10 degC` / ...
@@ -675,6 +676,11 @@ func (r *batchRun) computeRow(c *computed, columns []string, p *params) string {
 		row.vals[k] = v
 	}
 	p.reset(row.vals, r.h.cat, &r.h.unitCache)
+	for _, n := range row.names {
+		if isLabel(n) {
+			p.markUsed(n) // echoed, never read
+		}
+	}
 	// A row writes no method or references: they need not be built.
 	p.brief = true
 	for _, f := range row.faults { // as calculation does: nothing is computed
@@ -695,6 +701,21 @@ func (r *batchRun) computeRow(c *computed, columns []string, p *params) string {
 	}
 	c.warnings, c.checks, c.cautions = inputWarnings(p, resp.Warnings), checksOf(resp.Results), resp.Cautions
 	return ""
+}
+
+// isLabel reports whether a column (or JSON member) of a batch labels its
+// row rather than feeding the calculation: a name that begins with "#",
+// or id, ref, label, name, note, notes, comment or description in any
+// case. A label is echoed in the answer like every input and never read.
+func isLabel(n string) bool {
+	if strings.HasPrefix(n, "#") {
+		return true
+	}
+	switch strings.ToLower(n) {
+	case "id", "ref", "label", "name", "note", "notes", "comment", "description":
+		return true
+	}
+	return false
 }
 
 // unknownNames returns the parameters err refuses as unknown, when that

@@ -430,6 +430,13 @@ func TestBatchRefusals(t *testing.T) {
 	if rows := readCSV(t, w1.Body.Bytes()); w1.Code != http.StatusOK || len(rows) != 3 || strings.Contains(w1.Body.String(), "unknown") || rows[2][len(rows[2])-1] != "" {
 		t.Errorf("volume batch with a bad beta first: status %d, want 200 with row 2 computed and nothing unknown: %s", w1.Code, w1.Body)
 	}
+	// Label columns (id, ref, ..., or a name beginning with "#") are
+	// echoed and never read: the rows compute (12e-6/K x 48 m x 50 K =
+	// 28.8 mm, dL = alpha L dT).
+	wl := post(t, r, "/v1/batch/expansion/linear", "text/csv", "", "Ref,length,alpha,delta_t,#note\nB1,48 m,12e-6/K,50 K,north bay\n")
+	if rows := readCSV(t, wl.Body.Bytes()); wl.Code != http.StatusOK || len(rows) != 2 || rows[1][0] != "B1" || rows[1][4] != "north bay" || rows[1][5] != "28.8" || rows[1][len(rows[1])-1] != "" {
+		t.Errorf("label columns: status %d, want the row computed with its labels echoed: %s", wl.Code, wl.Body)
+	}
 	// A member of one JSON element is that element's own: the other rows
 	// are answered.
 	w0 := post(t, r, "/v1/batch/expansion/linear", "application/json", "", `[{"length": "1 m", "alpha": "1e-6/K", "delta_t": "1 K", "colour": "red"}, {"length": "1 m", "alpha": "1e-6/K", "delta_t": "1 K"}]`)
