@@ -568,6 +568,12 @@ func (h *Handler) restraint(p *params) (*Response, error) {
 		return nil, err
 	}
 
+	if hot := max(iv.t1, iv.t2); iv.absolute && hot > units.Celsius(100) && peekMaterial(p, "material") != nil && (!p.has("modulus") || fyFrom != "request" && hasFy) {
+		// Catalogue properties are at room temperature; EN 1993-1-2
+		// Table 3.1 (from memory, not re-read) keeps the modulus of carbon
+		// steel to 100 degC and reduces it above.
+		resp.Warnings = append(resp.Warnings, "the interval reaches "+units.CelsiusText(hot)+", but the catalogue's modulus and yield strength are room-temperature values, and both fall when a material is heated (for carbon steel EN 1993-1-2 Table 3.1 reduces them above 100 degC): give modulus and yield_strength at the temperature")
+	}
 	method := []string{"free_strain e = alpha dT (" + co.from + "); stress = -R E e, tension positive (a heated restrained member is in compression, negative)"}
 	resp.References = append(resp.References, refRestrained, refASTME228)
 	if co.Kind != "constant" {

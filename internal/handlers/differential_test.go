@@ -335,3 +335,27 @@ func TestRestraintWarningsInAnswerUnits(t *testing.T) {
 		t.Errorf("355 mPa: warnings %q; want the unit check first, then the stress", d.Warnings)
 	}
 }
+
+// TestRestraintHotCatalogueProperties: a restrained member heated past
+// 100 degC with the catalogue's room-temperature modulus or yield
+// strength warns; EN 1993-1-2 Table 3.1 (from memory, not re-read)
+// reduces both for carbon steel above 100 degC. Given at the temperature,
+// or below 100 degC, nothing is said.
+func TestRestraintHotCatalogueProperties(t *testing.T) {
+	r := newTestHandler(t).Router()
+	const hint = "room-temperature values"
+	for _, tc := range []struct {
+		query string
+		warn  bool
+	}{
+		{"material=structural-steel&t_initial=20%20degC&t_final=600%20degC", true},
+		{"material=structural-steel&t_initial=20%20degC&t_final=80%20degC", false},
+		{"material=structural-steel&t_initial=20%20degC&t_final=600%20degC&modulus=65%20GPa&yield_strength=167%20MPa", false},
+		{"alpha=12e-6/K&modulus=210%20GPa&t_initial=20%20degC&t_final=600%20degC", false},
+	} {
+		d := decode(t, do(t, r, "GET", "/v1/restraint?"+tc.query, "", ""))
+		if anyContains(d.Warnings, hint) != tc.warn {
+			t.Errorf("%s: warnings %q; want the room-temperature warning: %v", tc.query, d.Warnings, tc.warn)
+		}
+	}
+}
