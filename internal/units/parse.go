@@ -93,7 +93,7 @@ func (q Quantity) String() string {
 //	number   = ["+" | "-"] (digits ["." [digits]] | "." digits) [("e" | "E") ["+" | "-"] digits]
 //	unit     = ["/"] term {("*" | "." | "·" | " " | "/") term}
 //	term     = symbol [exponent] | "1" | "(" unit ")" [exponent]
-//	exponent = digits | "-" digits | "^" ["+" | "-"] digits | "²" | "³" | "⁴"
+//	exponent = digits | "-" digits | "^" ["+" | "-"] digits | ["⁻"] ("¹" | "²" | "³" | "⁴")
 //	symbol   = an entry of the unit table, optionally after an SI prefix
 //
 // Multiplication and division associate to the left, so "um/m/K" is
@@ -454,34 +454,37 @@ func isSymbolByte(s string, i int) bool {
 	case c >= 0x80:
 		// Superscript digits (² ³ ⁴) and the middle dot are operators or
 		// exponents, not part of a symbol.
-		return superscript(s[i:]) == 0 && !strings.HasPrefix(s[i:], "·")
+		_, n := superscript(s[i:])
+		return n == 0 && !strings.HasPrefix(s[i:], "·")
 	}
 	return false
 }
 
-// superscript returns the exponent of a leading superscript ², ³ or ⁴, or 0.
-func superscript(s string) int8 {
-	switch {
-	case strings.HasPrefix(s, "²"):
-		return 2
-	case strings.HasPrefix(s, "³"):
-		return 3
-	case strings.HasPrefix(s, "⁴"):
-		return 4
+// superscript returns the exponent written in superscript at the start
+// of s (¹ ² ³ ⁴, after a superscript minus ⁻ for a negative one: K⁻¹) and
+// its length in bytes, or 0, 0.
+func superscript(s string) (exp int8, size int) {
+	sign := int8(1)
+	if strings.HasPrefix(s, "⁻") {
+		sign, size, s = -1, len("⁻"), s[len("⁻"):]
 	}
-	return 0
+	for _, d := range [...]struct {
+		sym string
+		n   int8
+	}{{"¹", 1}, {"²", 2}, {"³", 3}, {"⁴", 4}} {
+		if strings.HasPrefix(s, d.sym) {
+			return sign * d.n, size + len(d.sym)
+		}
+	}
+	return 0, 0 // a lone ⁻ is no exponent
 }
 
 func (p *unitParser) exponent() (int8, error) {
 	if p.i >= len(p.s) {
 		return 1, nil
 	}
-	if n := superscript(p.s[p.i:]); n != 0 {
-		if n == 4 {
-			p.i += len("⁴")
-		} else {
-			p.i += len("²") // ² and ³ are two bytes in UTF-8, ⁴ three
-		}
+	if n, size := superscript(p.s[p.i:]); size != 0 {
+		p.i += size
 		return n, nil
 	}
 	neg := false

@@ -92,25 +92,27 @@ var parseCases = []parseCase{
 	{"6.5e-6 /[degF]", 6.5e-6 / refDegF, units.Coefficient, 6.5e-6, "/[degF]"},      // 1 degF = 5/9 K: from memory of NIST SP 811, not re-read
 	{"12e-6 1/Cel", 12e-6 / refDegC, units.Coefficient, 12e-6, "1/Cel"},             // 1 degC interval = 1 K: from memory of NIST SP 811, not re-read
 	// Stress and force.
-	{"205 GPa", 205 * refGiga, units.Stress, 205, "GPa"},                       // gonum Giga
-	{"29000 ksi", 29000 * refKsi, units.Stress, 29000, "ksi"},                  // NIST SP 811 (2008) Appendix B: ksi = 1000 psi, psi = 6894.757293168 Pa
-	{"235 N/mm2", 235 / (refMilli * refMilli), units.Stress, 235, "N/mm2"},     // gonum Milli
-	{"1 psi", refPsi, units.Stress, 1, "psi"},                                  // NIST SP 811 (2008) Appendix B: 1 psi = 6894.757293168 Pa
-	{"1 [psi]", refPsi, units.Stress, 1, "[psi]"},                              // NIST SP 811 (2008) Appendix B: 1 psi = 6894.757293168 Pa
-	{"10 Msi", 10 * refMsi, units.Stress, 10, "Msi"},                           // Msi = 1e6 psi: common practice, no published source
-	{"250 kPa", 250 * refKilo, units.Stress, 250, "kPa"},                       // gonum Kilo
-	{"2 bar", 2 * refBar, units.Stress, 2, "bar"},                              // 1 bar = 1e5 Pa: from memory of NIST SP 811, not re-read
-	{"150 kN", 150 * refKilo, units.Force, 150, "kN"},                          // gonum Kilo
-	{"2 MN", 2 * refMega, units.Force, 2, "MN"},                                // gonum Mega
-	{"3 lbf", 3 * refLbf, units.Force, 3, "lbf"},                               // NIST SP 811 (2008) Appendix B: 1 lbf = 4.4482216152605 N
-	{"3 kip", 3 * refKip, units.Force, 3, "kip"},                               // kip = 1000 lbf: from memory of NIST SP 811, not re-read
-	{"40 kN*m", 40 * refKilo, units.Moment, 40, "kN*m"},                        // gonum Kilo
-	{"40 kN.m", 40 * refKilo, units.Moment, 40, "kN.m"},                        // gonum Kilo
-	{"40 kN·m", 40 * refKilo, units.Moment, 40, "kN·m"},                        // gonum Kilo
-	{"40 kN m", 40 * refKilo, units.Moment, 40, "kN m"},                        // a space multiplies: SI Brochure 5.4.3, "N m or N·m" (from memory, not re-read)
-	{"0.012 mm/(m K)", 0.012 * refMilli, units.Coefficient, 0.012, "mm/(m K)"}, // the same, inside the divisor's parentheses
-	{"2 kip*ft", 2 * refKip * refFoot, units.Moment, 2, "kip*ft"},              // kip: from memory of NIST SP 811, not re-read; ft: NIST SP 811 B.8
-	{"50 kN/mm", 50 * refKilo / refMilli, units.Stiffness, 50, "kN/mm"},        // gonum Kilo, Milli
+	{"205 GPa", 205 * refGiga, units.Stress, 205, "GPa"},                                 // gonum Giga
+	{"29000 ksi", 29000 * refKsi, units.Stress, 29000, "ksi"},                            // NIST SP 811 (2008) Appendix B: ksi = 1000 psi, psi = 6894.757293168 Pa
+	{"235 N/mm2", 235 / (refMilli * refMilli), units.Stress, 235, "N/mm2"},               // gonum Milli
+	{"1 psi", refPsi, units.Stress, 1, "psi"},                                            // NIST SP 811 (2008) Appendix B: 1 psi = 6894.757293168 Pa
+	{"1 [psi]", refPsi, units.Stress, 1, "[psi]"},                                        // NIST SP 811 (2008) Appendix B: 1 psi = 6894.757293168 Pa
+	{"10 Msi", 10 * refMsi, units.Stress, 10, "Msi"},                                     // Msi = 1e6 psi: common practice, no published source
+	{"250 kPa", 250 * refKilo, units.Stress, 250, "kPa"},                                 // gonum Kilo
+	{"2 bar", 2 * refBar, units.Stress, 2, "bar"},                                        // 1 bar = 1e5 Pa: from memory of NIST SP 811, not re-read
+	{"150 kN", 150 * refKilo, units.Force, 150, "kN"},                                    // gonum Kilo
+	{"2 MN", 2 * refMega, units.Force, 2, "MN"},                                          // gonum Mega
+	{"3 lbf", 3 * refLbf, units.Force, 3, "lbf"},                                         // NIST SP 811 (2008) Appendix B: 1 lbf = 4.4482216152605 N
+	{"3 kip", 3 * refKip, units.Force, 3, "kip"},                                         // kip = 1000 lbf: from memory of NIST SP 811, not re-read
+	{"40 kN*m", 40 * refKilo, units.Moment, 40, "kN*m"},                                  // gonum Kilo
+	{"40 kN.m", 40 * refKilo, units.Moment, 40, "kN.m"},                                  // gonum Kilo
+	{"40 kN·m", 40 * refKilo, units.Moment, 40, "kN·m"},                                  // gonum Kilo
+	{"12e-6 K⁻¹", 12e-6, units.Coefficient, 12e-6, "K⁻¹"},                                // superscript powers, negative ones too: ISO 80000-1 (from memory, not re-read)
+	{"205 kN·mm⁻²", 205 * refKilo / (refMilli * refMilli), units.Stress, 205, "kN·mm⁻²"}, // 1 kN/mm2 = 1 GPa
+	{"40 kN m", 40 * refKilo, units.Moment, 40, "kN m"},                                  // a space multiplies: SI Brochure 5.4.3, "N m or N·m" (from memory, not re-read)
+	{"0.012 mm/(m K)", 0.012 * refMilli, units.Coefficient, 0.012, "mm/(m K)"},           // the same, inside the divisor's parentheses
+	{"2 kip*ft", 2 * refKip * refFoot, units.Moment, 2, "kip*ft"},                        // kip: from memory of NIST SP 811, not re-read; ft: NIST SP 811 B.8
+	{"50 kN/mm", 50 * refKilo / refMilli, units.Stiffness, 50, "kN/mm"},                  // gonum Kilo, Milli
 	// Lengths.
 	{"3 mm", 3 * refMilli, units.Length, 3, "mm"},         // gonum Milli
 	{"3 cm", 3 * refCenti, units.Length, 3, "cm"},         // gonum Centi
