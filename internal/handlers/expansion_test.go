@@ -424,12 +424,19 @@ func TestSameScaleDifferenceExact(t *testing.T) {
 		"t_initial=50%20degF&t_final=100%20degF":  "16",
 		"delta_t=50%20degF":                       "16",
 		"t_initial=-40%20degF&t_final=-40%20degC": "0",
+		"t_initial=-40%20degC&t_final=-40%20degF": "0",
 		"t_initial=59%20degF&t_final=60.8%20degF": "0.576",
 	} {
 		w := do(t, r, http.MethodGet, "/v1/expansion/linear?length=48%20m&alpha=12e-6/K&format=text&"+q, "", "")
 		if got := strings.TrimSpace(w.Body.String()); w.Code != http.StatusOK || got != want {
 			t.Errorf("%s: %d %q, want %q exactly", q, w.Code, got, want)
 		}
+	}
+	// A reading exactly at a limit stays at it, whatever is read before:
+	// 122 degF is 50 degC, the top of EN 1991-1-5 Figure 6.1's Tmax range
+	// (+20..+50 degC, as the bridge endpoint's README section states).
+	if w := do(t, r, http.MethodGet, "/v1/temperatures/bridge?method=en1991-1-5&shade_t_min=1%20degF&shade_t_max=122%20degF&deck_type=2", "", ""); w.Code != http.StatusOK {
+		t.Errorf("shade_t_max=122 degF after shade_t_min=1 degF: %d %s, want 200", w.Code, w.Body)
 	}
 }
 

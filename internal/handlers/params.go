@@ -253,15 +253,7 @@ func (p *params) temperature(name string) (units.Temperature, bool) {
 	if !ok {
 		return 0, false
 	}
-	var t units.Temperature
-	var err error
-	if p.hasTemp0 {
-		// Beside the first temperature read: readings on one scale keep
-		// their differences exact.
-		t, err = q.TemperatureBeside(p.temp0.q, p.temp0.k)
-	} else {
-		t, err = q.Temperature()
-	}
+	t, err := q.Temperature()
 	if err == nil && float64(t) > maxKelvin {
 		p.unprocessable(name, q.String()+" is beyond any temperature this service computes")
 		return 0, false

@@ -44,11 +44,15 @@ func Celsius(c float64) Temperature { return Temperature(c + float64(ZeroCelsius
 // 10 degF is 260.928 K here. A result below 0 K is an error wrapping
 // ErrBelowZero.
 //
-// The kelvin value is rounded to the nanokelvin, far below any reading,
-// so that one temperature written on two scales is one number: -40 degF
-// and -40 degC, or 138.2 degF and 59 degC, would otherwise differ in the
-// last bit of the binary arithmetic and make a false movement of 1e-14
-// or fail an equality that holds.
+// The kelvin value is rounded to a ninth of a nanokelvin, far below any
+// reading, so that one temperature written on two scales is one number:
+// -40 degF and -40 degC, or 138.2 degF and 59 degC, would otherwise differ
+// in the last bit of the binary arithmetic and make a false movement of
+// 1e-14 or fail an equality that holds. The ninth is the grid every
+// reading with up to nine decimals lands on exactly, in degC and K and in
+// degF and degR (5/9 K a degree) alike, so the rounding moves no reading
+// and differences of readings come out exact: 0 to 120 degF is 60 x 5/9 K
+// to the last written digit, where a nanokelvin grid left 66.666666667 K.
 func (q Quantity) Temperature() (Temperature, error) {
 	if q.Unit.Dim != Temp || !q.Unit.scale {
 		return 0, dimError(q, Temp, "an absolute temperature")
@@ -60,27 +64,10 @@ func (q Quantity) Temperature() (Temperature, error) {
 		exact := strconv.FormatFloat(q.Value, 'g', -1, 64) + " " + q.Unit.Symbol
 		return 0, errorf(exact, ErrBelowZero, Quote(exact)+" is below absolute zero")
 	}
-	if k < 1e12 {
-		k = math.Round(k*1e9) / 1e9 // at or above 0, as the test above leaves it
+	if k < 1e6 { // k * 9e9 within the integers a float64 holds exactly
+		k = math.Round(k*9e9) / 9e9 // at or above 0, as the test above leaves it
 	}
 	return Temperature(k), nil
-}
-
-// TemperatureBeside returns q as an absolute temperature placed beside
-// ref, a reading on the same scale already converted to refK: refK plus
-// the difference of the two readings. Differences of readings on one
-// scale then come out as the scale gives them (120 degF less 60 degF is
-// 60 x 5/9 K to the last digit), which two conversions to kelvin, each
-// rounded to the nanokelvin, do not keep. On another scale than ref's it
-// is Temperature.
-func (q Quantity) TemperatureBeside(ref Quantity, refK Temperature) (Temperature, error) {
-	t, err := q.Temperature() // the checks, and the value on another scale
-	if err != nil || q.Unit.Offset != ref.Unit.Offset || q.Unit.Factor != ref.Unit.Factor || !ref.Unit.scale {
-		return t, err
-	}
-	// At or above 0 K, as Temperature found: refK's rounding may not take
-	// a reading at absolute zero below it.
-	return Temperature(max(float64(refK)+(q.Value-ref.Value)*q.Unit.Factor, 0)), nil
 }
 
 // TemperatureDifference returns q as a temperature difference: 10 degF

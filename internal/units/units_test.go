@@ -572,6 +572,7 @@ func TestTemperatureSameOnEveryScale(t *testing.T) {
 		{"37 degC", "98.6 degF"},
 		{"-196 degC", "-320.8 degF", "77.15 K"},
 		{"1200 degC", "2192 degF"},
+		{"50 degC", "122 degF", "323.15 K", "581.67 degR"},
 	} {
 		var first units.Temperature
 		for i, s := range pair {
@@ -592,43 +593,34 @@ func TestTemperatureSameOnEveryScale(t *testing.T) {
 	}
 }
 
-// TestTemperatureBeside: a reading placed beside another on its scale
-// differs from it by the scale's difference to the last bits (1 degF = 5/9 K,
-// NIST SP 811, from memory); on another scale it is converted alone, so
-// -40 degC beside -40 degF is the same temperature; absolute zero on the
-// reference's scale stays at 0 K, and below it is refused as before.
-func TestTemperatureBeside(t *testing.T) {
-	parse := func(s string) units.Quantity {
-		q, err := units.Parse(s)
-		if err != nil {
-			t.Fatalf("Parse(%q): %v", s, err)
-		}
-		return q
-	}
-	ref := parse("0 degF")
-	refK, _ := ref.Temperature()
+// TestTemperatureDifferencesOfReadings: absolute temperatures are kept
+// on a grid every reading with up to nine decimals lands on, so their
+// differences are those of the readings to the last bits (1 degF = 5/9 K,
+// 1 degR = 5/9 K, NIST SP 811, from memory): 0 to 120 degF is 66.67 K,
+// 59 to 60.8 degF is 1 K, whichever is read first. A nanokelvin grid
+// missed the first by 3e-10 K.
+func TestTemperatureDifferencesOfReadings(t *testing.T) {
 	for _, tc := range []struct {
-		s    string
-		want float64 // kelvin from refK, or -1 for 0 K exactly
-	}{{"120 degF", 120.0 * 5 / 9}, {"60 degF", 60.0 * 5 / 9}, {"-459.67 degF", -1}} {
-		k, err := parse(tc.s).TemperatureBeside(ref, refK)
-		switch {
-		case err != nil:
-			t.Errorf("%s: %v", tc.s, err)
-		case tc.want == -1 && k != 0:
-			t.Errorf("%s beside 0 degF = %v K, want 0", tc.s, float64(k))
-		case tc.want != -1 && math.Abs(float64(k.Sub(refK))-tc.want) > 1e-12:
-			// A few units in the last place of 255 K; two roundings to
-			// the nanokelvin could miss by 1e-9.
-			t.Errorf("%s beside 0 degF: %v K from it, want %v", tc.s, float64(k.Sub(refK)), tc.want)
+		a, b string
+		want float64 // b - a, K
+	}{
+		{"0 degF", "120 degF", 120.0 * 5 / 9},
+		{"59 degF", "60.8 degF", 1},
+		{"-40.123456789 degF", "212.987654321 degF", (212.987654321 + 40.123456789) * 5 / 9},
+		{"10.5 degR", "600.25 degR", (600.25 - 10.5) * 5 / 9},
+		{"-12.345678912 degC", "30.000000001 degC", 42.345678913},
+		{"20 degC", "68 degF", 0},
+	} {
+		qa, err1 := units.Parse(tc.a)
+		qb, err2 := units.Parse(tc.b)
+		if err1 != nil || err2 != nil {
+			t.Fatalf("Parse: %v %v", err1, err2)
 		}
-	}
-	other, _ := parse("-40 degF").Temperature()
-	if k, _ := parse("-40 degC").TemperatureBeside(ref, refK); k != other {
-		t.Errorf("-40 degC beside 0 degF = %v K, want %v K as alone", float64(k), float64(other))
-	}
-	if _, err := parse("-460 degF").TemperatureBeside(ref, refK); !errors.Is(err, units.ErrBelowZero) {
-		t.Errorf("-460 degF beside 0 degF: %v, want ErrBelowZero", err)
+		ka, _ := qa.Temperature()
+		kb, _ := qb.Temperature()
+		if d := float64(kb.Sub(ka)); math.Abs(d-tc.want) > 1e-12*math.Max(1, math.Abs(tc.want)) {
+			t.Errorf("%s to %s = %.15g K, want %.15g", tc.a, tc.b, d, tc.want)
+		}
 	}
 }
 
