@@ -20,7 +20,9 @@ import (
 
 	"github.com/gin-gonic/gin"
 	"go.uber.org/zap"
+	"go.yaml.in/yaml/v3"
 
+	"github.com/thermalmovement/service/api"
 	"github.com/thermalmovement/service/internal/units"
 )
 
@@ -87,7 +89,7 @@ func (h *Handler) batchRoutes() []route {
 //	@Description	Parameters in the query string (other than the output options) apply to every row; a row that gives one too is an error of that row.
 //	@Description	Out: CSV or JSON as format= asks, else as Accept asks (text/csv or application/json), else the form of the body. Each row has every input column as sent, then every result column with its unit in the name (`delta_length [mm]`; units by units= and <result>_unit=, empty or null where a result is not computed for the row), then for joints/gap a check_<name> column per check (pass, fail, or empty where the row has no such check), then `warnings`, `cautions` (each caution once, in the first row it applies to; the standing ones in the first row) and `error` (empty where the row computed). A JSON answer is an array of flat objects with exactly these keys, a table like the CSV. With a JSON body and a CSV answer the columns are the members of the first element.
 //	@Description	Columns (or members) named id, ref, label, name, note, notes, comment or description (any case), or beginning with "#", label the rows: they are echoed and never read.
-//	@Description	One bad row never fails the batch: its error column says what is wrong, in the words of the single request's problem detail. A CSV header column or query parameter the calculation does not take is a 400 problem naming it, since every row would be refused for it (decided by the first row that reaches the calculation, when unknown parameters are all it is refused for).
+//	@Description	One bad row never fails the batch: its error column says what is wrong, in the words of the single request's problem detail. A CSV header column or query parameter the calculation does not take is a 400 problem naming it, since every row would be refused for it (named by the first row that reaches the calculation; a parameter this document declares for the calculation is never one).
 //	@Description	Limits: rows (--batch-max-rows, default 100000) and body bytes (--batch-max-bytes, default 32 MiB). The answer streams: rows are computed and sent as they are read, so memory stays flat. A limit reached before 64 KiB of answer is ready is a 413 problem; after that the status line has been sent, so the answer ends with one more row whose error begins "batch stopped after row N:" and whose other cells are empty, and the trailer Batch-Status says "stopped after row N: ..." (else "complete: N rows"). A body whose Content-Length is over the byte limit is refused with 413 at once.
 //	@Description	Demo example: three bays of a warehouse slab, `length,material,t_initial,t_final` / `30 m,concrete,15 degC,-10 degC` / ...
 //	@Tags			batch
@@ -718,9 +720,7 @@ func isLabel(n string) bool {
 	return false
 }
 
-// unknownNames returns the parameters err refuses as unknown, when that
-// is all it refuses: a row with other faults as well may have stopped
-// before reading a parameter it would have taken.
+// unknownNames returns the parameters err refuses as unknown.
 func unknownNames(err error) []string {
 	var ae *apiError
 	if !errors.As(err, &ae) {
@@ -728,19 +728,45 @@ func unknownNames(err error) []string {
 	}
 	var names []string
 	for _, f := range ae.fields {
-		if f.Detail != unknownParameter {
-			return nil
+		if f.Detail == unknownParameter {
+			names = append(names, f.Parameter)
 		}
-		names = append(names, f.Parameter)
 	}
 	return names
 }
 
+// documented lists the query parameters api/openapi.yaml declares for each
+// GET route: the inputs a calculation takes, whatever the values.
+var documented = sync.OnceValue(func() map[string]map[string]bool {
+	var doc struct {
+		Paths map[string]struct {
+			Get struct {
+				Parameters []struct{ Name, In string }
+			}
+		}
+	}
+	out := map[string]map[string]bool{}
+	if yaml.Unmarshal(api.Spec, &doc) != nil {
+		return out // no list: the first row alone decides
+	}
+	for path, item := range doc.Paths {
+		names := map[string]bool{}
+		for _, p := range item.Get.Parameters {
+			if p.In == "query" {
+				names[p.Name] = true
+			}
+		}
+		out[path] = names
+	}
+	return out
+})
+
 // unknownInputs is a 400 for the parameters every row carries, the CSV
 // header's columns and the query's, that the calculation does not take:
 // each row would be refused for them. The first row that reaches the
-// calculation names them, when they are all it is refused for; nothing of
-// the answer has been sent yet.
+// calculation names them, and a name api/openapi.yaml declares for the
+// calculation is never one (a row refused for a bad value may have stopped
+// before reading it); nothing of the answer has been sent yet.
 func (r *batchRun) unknownInputs(first *batchChunk) error {
 	if r.sink.committed {
 		return nil
@@ -750,7 +776,11 @@ func (r *batchRun) unknownInputs(first *batchChunk) error {
 		return nil
 	}
 	var fs []FieldError
+	declared := documented()["/v1/"+r.spec.name]
 	for _, n := range first.rows[i].unknown {
+		if declared[n] {
+			continue
+		}
 		where := "query parameter"
 		if _, shared := r.shared[n]; !shared {
 			if !r.inCSV || !contains(first.inputs, n) {

@@ -418,13 +418,24 @@ func TestBatchRefusals(t *testing.T) {
 	if p := decodeProblem(t, post(t, r, "/v1/batch/expansion/linear?result=x", "text/csv", "", okCSV)); len(p.Errors) != 1 || p.Errors[0].Parameter != "result" {
 		t.Errorf("result=x: errors %+v, want one, on result", p.Errors)
 	}
-	// The first row that reaches the calculation decides, and only when
-	// unknown parameters are all it is refused for: a gap row first still
-	// finds the column; a first row refused for a bad beta, which stops
-	// expansion/volume before it reads material, does not make material
-	// unknown for the rest.
-	if w := post(t, r, "/v1/batch/expansion/linear", "text/csv", "", "length,alpha,delta_t,colour\n,,,\n48 m,12e-6/K,50 K,red\n"); w.Code != http.StatusBadRequest {
-		t.Errorf("gap row before an unknown column: status %d, want 400: %s", w.Code, w.Body)
+	// The first row that reaches the calculation decides, beside other
+	// faults of its own: a gap row first still finds the column, and so
+	// does a misspelled required column (the row also lacks length); a
+	// parameter api/openapi.yaml declares is never called unknown, so a
+	// first row refused for a bad beta, which expansion/volume may stop at,
+	// does not make material unknown for the rest.
+	for _, body := range []string{"length,alpha,delta_t,colour\n,,,\n48 m,12e-6/K,50 K,red\n", "lenght,alpha,delta_t\n48 m,12e-6/K,50 K\n"} {
+		if w := post(t, r, "/v1/batch/expansion/linear", "text/csv", "", body); w.Code != http.StatusBadRequest || !strings.Contains(w.Body.String(), "unknown parameter (a column)") {
+			t.Errorf("%q: status %d, want 400 naming the column: %s", body, w.Code, w.Body)
+		}
+	}
+	for _, name := range []string{"expansion/linear", "expansion/area", "expansion/volume", "restraint", "differential", "joints/gap", "joints/spacing", "temperatures/bridge"} {
+		if d := documented()["/v1/"+name]; len(d) < 3 || !d["format"] {
+			t.Errorf("documented inputs of %s: %v, want its query parameters from api/openapi.yaml", name, d)
+		}
+	}
+	if !documented()["/v1/expansion/volume"]["material"] || documented()["/v1/expansion/linear"]["colour"] {
+		t.Error("documented inputs: want material for expansion/volume and no colour for expansion/linear")
 	}
 	w1 := post(t, batchTestHandler(t, Options{}).Router(), "/v1/batch/expansion/volume", "text/csv", "", "volume,beta,material,delta_t\n1 m3,abc,structural-steel,10 K\n1 m3,2e-4/K,structural-steel,10 K\n")
 	if rows := readCSV(t, w1.Body.Bytes()); w1.Code != http.StatusOK || len(rows) != 3 || strings.Contains(w1.Body.String(), "unknown") || rows[2][len(rows[2])-1] != "" {
