@@ -1024,7 +1024,9 @@ func decodeElement(b []byte) *batchRow {
 	if err != nil {
 		return &batchRow{err: err.Error()}
 	}
-	row.faults = faults
+	// A label is never read: whatever its value (null, an array, a
+	// number beyond float64), it is no fault of the row.
+	row.faults = slices.DeleteFunc(faults, func(f FieldError) bool { return isLabel(f.Parameter) })
 	return row
 }
 
