@@ -122,11 +122,6 @@ func WaterDensity(t units.Temperature) (float64, error) {
 	return WaterDensityAnyT(t), nil
 }
 
-// KellPole is where the denominator of Kell's equation, 1 + 16.879850e-3 t,
-// is zero (t = -59.24 degC): at and below it the equation gives no
-// density, whatever its sign.
-var KellPole = units.Celsius(-1 / 16.879850e-3)
-
 // WaterDensityAnyT evaluates Kell's equation without the range check.
 func WaterDensityAnyT(t units.Temperature) float64 {
 	c := t.Celsius()

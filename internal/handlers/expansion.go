@@ -112,11 +112,20 @@ func (h *Handler) cite(p *params, resp *Response, co coefficient) {
 
 // waterCritical is the critical temperature of water, 647.096 K
 // (IAPWS-95, from memory): above it there is no liquid to expand.
-const waterCritical = units.Temperature(647.096)
+// waterColdest is where supercooled water freezes however still it is
+// kept, about -40 degC (homogeneous nucleation, from memory of the cloud
+// physics literature, not re-read): below it there is no liquid either,
+// and Kell's equation, whose denominator is zero at -59.24 degC, gives
+// densities far from water's well before that.
+const (
+	waterCritical = units.Temperature(647.096)
+	waterColdest  = units.Temperature(233.15)
+)
 
 // waterBeyond names the temperature of an extrapolated water interval
 // that Kell's equation cannot be taken to, and says why: above the
-// critical point, or where the polynomial gives no positive density.
+// critical point, below the coldest liquid water, or where the polynomial
+// gives no positive density.
 func waterBeyond(iv interval, rho1, rho2 float64) (name, why string) {
 	for _, e := range [...]struct {
 		name string
@@ -126,8 +135,10 @@ func waterBeyond(iv interval, rho1, rho2 float64) (name, why string) {
 		switch {
 		case e.t > waterCritical:
 			return e.name, units.CelsiusText(e.t) + " is above the critical point of water, " + units.CelsiusText(waterCritical) + ": there is no liquid to expand"
-		case e.t <= calc.KellPole || !(e.rho > 0) || math.IsInf(e.rho, 0):
-			return e.name, "Kell's equation gives no density of water at " + units.CelsiusText(e.t) + " (its denominator is zero at " + units.CelsiusText(calc.KellPole) + " and negative below)"
+		case e.t < waterColdest:
+			return e.name, units.CelsiusText(e.t) + " is below " + units.CelsiusText(waterColdest) + ", where even supercooled water freezes: there is no liquid to expand"
+		case !(e.rho > 0) || math.IsInf(e.rho, 0):
+			return e.name, "Kell's equation gives no density of water at " + units.CelsiusText(e.t)
 		}
 	}
 	return "", ""

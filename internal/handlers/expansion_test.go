@@ -443,12 +443,14 @@ func TestSameScaleDifferenceExact(t *testing.T) {
 // TestWaterExtrapolationLimits: extrapolate=true takes Kell's (1975)
 // equation beyond 0..150 degC, but not above the critical point of water
 // (647.096 K, IAPWS-95, from memory), where there is no liquid and the
-// polynomial gives a negative density by 500 degC, nor to its pole, where
-// its denominator 1 + 16.879850e-3 t (read) is zero: t = -59.24 degC.
+// polynomial gives a negative density by 500 degC, nor below about
+// -40 degC, where supercooled water freezes (homogeneous nucleation, from
+// memory) and the equation, whose denominator 1 + 16.879850e-3 t (read)
+// is zero at -59.24 degC, gives 25.7 kg/m3 at -58 degC.
 func TestWaterExtrapolationLimits(t *testing.T) {
 	r := newTestHandler(t).Router()
 	base := "/v1/expansion/volume?volume=1%20m3&material=water&t_initial=20%20degC&extrapolate=true&t_final="
-	for _, tc := range []struct{ t, want string }{{"500%20degC", "critical point"}, {"-80%20degC", "denominator is zero"}, {"-59.25%20degC", "denominator is zero"}} {
+	for _, tc := range []struct{ t, want string }{{"500%20degC", "critical point"}, {"-80%20degC", "supercooled water freezes"}, {"-58%20degC", "supercooled water freezes"}, {"-40.01%20degC", "supercooled water freezes"}} {
 		w := do(t, r, http.MethodGet, base+tc.t, "", "")
 		if p := decodeProblem(t, w); w.Code != http.StatusUnprocessableEntity || len(p.Errors) != 1 || p.Errors[0].Parameter != "t_final" || !strings.Contains(p.Errors[0].Detail, tc.want) {
 			t.Errorf("water to %s: status %d, errors %+v; want 422 on t_final saying %q", tc.t, w.Code, p.Errors, tc.want)
