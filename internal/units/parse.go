@@ -330,10 +330,12 @@ func (p *unitParser) expr() (float64, Dim, error) {
 	}
 	divided := div // a "/" came before, at this level
 	for {
+		ts := p.i
 		f, d, err := p.term()
 		if err != nil {
 			return 0, Dim{}, err
 		}
+		one := strings.TrimSpace(p.s[ts:p.i]) == "1" // the unit one: "1/K"
 		if div {
 			factor /= f
 			dim = dim.Mul(d.Pow(-1))
@@ -358,7 +360,8 @@ func (p *unitParser) expr() (float64, Dim, error) {
 		case p.s[p.i] == '/':
 			div, divided = true, true
 			p.i++
-		case p.s[p.i-1] == ' ' && (p.s[p.i] == '(' || isSymbolByte(p.s, p.i)):
+		case p.s[p.i-1] == ' ' && !one && (p.s[p.i] == '(' || isSymbolByte(p.s, p.i)):
+			// Not after the unit one: "2 1 m" is a stray digit, not 2 m.
 			// A space between two terms multiplies, as in "N m" and
 			// "mm/(m K)"; after a "/" it would be ambiguous ("mm/m K").
 			if divided {

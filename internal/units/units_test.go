@@ -349,6 +349,7 @@ var rejectCases = []errCase{
 	{"30 m/", units.ErrSyntax, []string{"ends early"}},
 	{"30 m*", units.ErrSyntax, []string{"ends early"}},
 	{"30 mm/m K", units.ErrSyntax, []string{"ambiguous"}}, // a space after "/": mm/(m K) or (mm/m) K?
+	{"2 1 m", units.ErrSyntax, nil},                       // a stray digit: the unit one takes no space product
 	{"30 (((((m)))))", units.ErrSyntax, []string{"nested"}},
 	{"30 " + strings.Repeat("(", 100) + "m" + strings.Repeat(")", 100), units.ErrSyntax, []string{"nested"}},
 }
