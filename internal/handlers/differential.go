@@ -568,11 +568,24 @@ func (h *Handler) restraint(p *params) (*Response, error) {
 		return nil, err
 	}
 
-	if hot := max(iv.t1, iv.t2); iv.absolute && hot > units.Celsius(100) && peekMaterial(p, "material") != nil && (!p.has("modulus") || fyFrom != "request" && hasFy) {
+	if hot := max(iv.t1, iv.t2); iv.absolute && hot > units.Celsius(100) && peekMaterial(p, "material") != nil {
 		// Catalogue properties are at room temperature; EN 1993-1-2
 		// Table 3.1 (from memory, not re-read) keeps the modulus of carbon
-		// steel to 100 degC and reduces it above.
-		resp.Warnings = append(resp.Warnings, "the interval reaches "+units.CelsiusText(hot)+", but the catalogue's modulus and yield strength are room-temperature values, and both fall when a material is heated (for carbon steel EN 1993-1-2 Table 3.1 reduces them above 100 degC): give modulus and yield_strength at the temperature")
+		// steel to 100 degC and its effective yield strength to 400 degC.
+		var from []string
+		if !p.has("modulus") {
+			from = append(from, "modulus")
+		}
+		if hasFy && fyFrom != "request" {
+			from = append(from, "yield strength")
+		}
+		if len(from) > 0 {
+			are := " are room-temperature values, which fall"
+			if len(from) == 1 {
+				are = " is a room-temperature value, which falls"
+			}
+			resp.Warnings = append(resp.Warnings, "the interval reaches "+units.CelsiusText(hot)+", but the catalogue's "+strings.Join(from, " and ")+are+" when a material is heated (for carbon steel EN 1993-1-2 Table 3.1 reduces the modulus above 100 degC and the effective yield strength above 400 degC): give "+strings.Join(from, " and ")+" at the temperature")
+		}
 	}
 	method := []string{"free_strain e = alpha dT (" + co.from + "); stress = -R E e, tension positive (a heated restrained member is in compression, negative)"}
 	resp.References = append(resp.References, refRestrained, refASTME228)

@@ -338,12 +338,13 @@ func TestRestraintWarningsInAnswerUnits(t *testing.T) {
 
 // TestRestraintHotCatalogueProperties: a restrained member heated past
 // 100 degC with the catalogue's room-temperature modulus or yield
-// strength warns; EN 1993-1-2 Table 3.1 (from memory, not re-read)
-// reduces both for carbon steel above 100 degC. Given at the temperature,
-// or below 100 degC, nothing is said.
+// strength warns, naming which; EN 1993-1-2 Table 3.1 (from memory, not
+// re-read) reduces the modulus of carbon steel above 100 degC and its
+// effective yield strength above 400 degC. Given at the temperature, or
+// below 100 degC, nothing is said.
 func TestRestraintHotCatalogueProperties(t *testing.T) {
 	r := newTestHandler(t).Router()
-	const hint = "room-temperature values"
+	const hint = "room-temperature value"
 	for _, tc := range []struct {
 		query string
 		warn  bool
@@ -352,10 +353,15 @@ func TestRestraintHotCatalogueProperties(t *testing.T) {
 		{"material=structural-steel&t_initial=20%20degC&t_final=80%20degC", false},
 		{"material=structural-steel&t_initial=20%20degC&t_final=600%20degC&modulus=65%20GPa&yield_strength=167%20MPa", false},
 		{"alpha=12e-6/K&modulus=210%20GPa&t_initial=20%20degC&t_final=600%20degC", false},
+		{"material=structural-steel&t_initial=20%20degC&t_final=600%20degC&modulus=65%20GPa", true}, // the catalogue's yield strength still
 	} {
 		d := decode(t, do(t, r, "GET", "/v1/restraint?"+tc.query, "", ""))
 		if anyContains(d.Warnings, hint) != tc.warn {
 			t.Errorf("%s: warnings %q; want the room-temperature warning: %v", tc.query, d.Warnings, tc.warn)
 		}
+	}
+	d := decode(t, do(t, r, "GET", "/v1/restraint?material=structural-steel&t_initial=20%20degC&t_final=600%20degC&modulus=65%20GPa", "", ""))
+	if !anyContains(d.Warnings, "the catalogue's yield strength is a room-temperature value") {
+		t.Errorf("modulus given: warnings %q; want only the yield strength named", d.Warnings)
 	}
 }
