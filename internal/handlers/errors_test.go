@@ -391,8 +391,8 @@ func TestCompressedBodyRefused(t *testing.T) {
 		req.Header.Set("Content-Encoding", tc.coding)
 		w := httptest.NewRecorder()
 		r.ServeHTTP(w, req)
-		if w.Code != tc.status || tc.status == 415 && !strings.Contains(w.Body.String(), "send the body uncompressed") {
-			t.Errorf("%s with Content-Encoding %s: %d %s; want %d", tc.target, tc.coding, w.Code, w.Body, tc.status)
+		if w.Code != tc.status || tc.status == 415 && (!strings.Contains(w.Body.String(), "send the body uncompressed") || w.Header().Get("Accept-Encoding") != "identity") {
+			t.Errorf("%s with Content-Encoding %s: %d %s %v; want %d, with Accept-Encoding: identity on a 415 (RFC 9110 12.5.3, read)", tc.target, tc.coding, w.Code, w.Body, w.Header(), tc.status)
 		}
 	}
 }

@@ -530,6 +530,9 @@ func (h *Handler) problem(c *gin.Context, out *outputOptions, err error) {
 	}
 	body, _ := json.Marshal(pr)
 	c.Header("Cache-Control", "no-store")
+	if pr.Status == http.StatusUnsupportedMediaType && unsupportedCoding(c.Request.Header) != "" {
+		c.Header("Accept-Encoding", "identity") // RFC 9110 12.5.3: the codings accepted
+	}
 	send(c, pr.Status, problemContentType, body)
 	c.Abort()
 }

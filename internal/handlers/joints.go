@@ -709,7 +709,7 @@ func (h *Handler) spacing(p *params) (*Response, error) {
 		resp.Warnings = append(resp.Warnings, "a slab "+metres(th)+" thick is outside the usual range of slabs on ground (75 to 500 mm, common practice, no published source): the rule of thumb may not apply")
 	}
 	if hi > maxSlabSpacing {
-		resp.Warnings = append(resp.Warnings, "spacing_max "+formatRounded(hi)+" m is beyond about 5.5 m (18 ft), the largest joint spacing usual for plain slabs on ground (from memory of ACI 360R, not re-read): panels that long tend to crack between the joints unless the slab is reinforced for it or its shrinkage is low, so the spacing should come from the slab's design, not from this rule")
+		resp.Warnings = append(resp.Warnings, "spacing_max "+formatRounded(hi)+" m ("+formatRounded(hi/0.3048)+" ft) is beyond about 5.5 m (18 ft), the largest joint spacing usual for plain slabs on ground (from memory of ACI 360R, not re-read): panels that long tend to crack between the joints unless the slab is reinforced for it or its shrinkage is low, so the spacing should come from the slab's design, not from this rule")
 	}
 	return resp, nil
 }

@@ -384,7 +384,7 @@ func TestJointSpacing(t *testing.T) {
 		t.Errorf("6 in slab: warnings %q, want none", b.Warnings)
 	}
 	b = readJointBody(t, jointGet(t, r, "/v1/joints/spacing", jq("thickness", "200 mm")))
-	if len(b.Warnings) != 1 || !strings.Contains(b.Warnings[0], "spacing_max 7.2 m is beyond about 5.5 m") {
+	if len(b.Warnings) != 1 || !strings.Contains(b.Warnings[0], "spacing_max 7.2 m (23.62 ft) is beyond about 5.5 m") {
 		t.Errorf("200 mm slab: warnings %q, want one on the 5.5 m limit", b.Warnings)
 	}
 }
