@@ -120,3 +120,15 @@ func GradientCurvature(alphaPerK, dTtopK, dTbottomK, depthM float64) float64 {
 func FixedEndMoment(modulusPa, secondMomentM4, kappa float64) float64 {
 	return modulusPa * secondMomentM4 * kappa
 }
+
+// HeldCurvatureStress returns the bending stress, Pa, at the faces of a
+// member of depth depthM, symmetric about mid-depth, whose free thermal
+// curvature kappa is held by its end moment: sigma = M (h/2) / I =
+// E kappa h / 2, compression at the top for a positive (warmer top)
+// kappa, tension at the bottom. With the axial part of full restraint
+// added, the stress at a face is -E alpha dT there, the fully restrained
+// thermal stress of Timoshenko and Goodier (Theory of Elasticity, thermal
+// stresses in beams; from memory, not re-read).
+func HeldCurvatureStress(modulusPa, kappa, depthM float64) float64 {
+	return modulusPa * kappa * depthM / 2
+}

@@ -141,4 +141,17 @@ func TestGradient(t *testing.T) {
 	if m := calc.FixedEndMoment(e, i, k); !near(m/(e*i), k, 1e-12) {
 		t.Errorf("FixedEndMoment / EI = %v, want %v", m/(e*i), k)
 	}
+	// Fully restrained (axially and against rotation), the stress at a
+	// face is -E alpha dT there (Timoshenko and Goodier, thermal stresses
+	// in beams; from memory, not re-read): top 15 K, bottom -5 K, mean 5 K.
+	axial := -e * alpha * 5
+	b := calc.HeldCurvatureStress(e, k, depth)
+	if top, bottom := axial-b, axial+b; !near(top, -e*alpha*15, 1e-12) || !near(bottom, -e*alpha*-5, 1e-12) {
+		t.Errorf("face stresses %v, %v; want %v, %v", top, bottom, -e*alpha*15, e*alpha*5)
+	}
+	// And it is M c / I with M the end moment, c = depth/2 (same source).
+	m := calc.FixedEndMoment(e, i, k)
+	if !near(b, m*(depth/2)/i, 1e-12) {
+		t.Errorf("HeldCurvatureStress = %v, want M c / I = %v", b, m*(depth/2)/i)
+	}
 }

@@ -362,10 +362,21 @@ type RestraintResults struct {
 	BucklingUtilisation *Value `json:"buckling_utilisation,omitempty" kind:"ratio"`
 	GradientCurvature   *Value `json:"gradient_curvature,omitempty" kind:"curvature"`
 	EndMoment           *Value `json:"end_moment,omitempty" kind:"moment"`
+	StressTop           *Value `json:"stress_top,omitempty" kind:"stress"`
+	StressBottom        *Value `json:"stress_bottom,omitempty" kind:"stress"`
 
 	// stressNotes are the warnings that quote stresses, written in MPa
 	// and rewritten by render in the answer's stress unit.
 	stressNotes []stressNote
+}
+
+// maxAbs is the largest magnitude of xs.
+func maxAbs(xs []float64) float64 {
+	m := 0.0
+	for _, x := range xs {
+		m = max(m, math.Abs(x))
+	}
+	return m
 }
 
 // stressNote is a warning that quotes stresses: si is its text in MPa,
@@ -401,7 +412,7 @@ func (r *RestraintResults) render(out *outputOptions, resp *Response) ([]byte, s
 // restraint godoc
 //
 //	@Summary		Stress and force in a restrained member; thermal buckling; gradient through the depth
-//	@Description	Free strain e = alpha dT; stress = -R E e (tension positive, so a heated restrained member is in compression, negative); force = stress x area. Degree of restraint R from restraint (0 free .. 1 rigid, default 1) or from support_stiffness k, N/m, of a spring at one end with the other end rigid: R = k / (k + E A / L) (needs area and length). Buckling (end_condition with radius_of_gyration, or second_moment and area, and length): the temperature rise at which R E A alpha dT reaches the Euler load pi^2 E I / (K L)^2, K = 1 pinned, 0.5 fixed, 0.7 fixed-pinned, 2 cantilever. A warning when the stress or the Euler stress exceeds the yield strength (yield_strength or the catalogue's), and when there is no strength to check the stress against (none given, none in the catalogue: concrete, masonry, glass). Gradient (delta_t_top, delta_t_bottom, depth): free curvature alpha (dT_top - dT_bottom)/depth, positive for a warmer top (the member hogs); uniform part the mean of the two; with second_moment the end moment E I kappa of a fixed-fixed member, positive when it compresses the top face. Demo example: a 168.3 x 7.1 mm steel pipe (A = 3600 mm2, r = 57 mm) held between anchors in a demo plant trench, guided every 6 m, warmed by 40 K.
+//	@Description	Free strain e = alpha dT; stress = -R E e (tension positive, so a heated restrained member is in compression, negative); force = stress x area. Degree of restraint R from restraint (0 free .. 1 rigid, default 1) or from support_stiffness k, N/m, of a spring at one end with the other end rigid: R = k / (k + E A / L) (needs area and length). Buckling (end_condition with radius_of_gyration, or second_moment and area, and length): the temperature rise at which R E A alpha dT reaches the Euler load pi^2 E I / (K L)^2, K = 1 pinned, 0.5 fixed, 0.7 fixed-pinned, 2 cantilever. A warning when the stress or the Euler stress exceeds the yield strength (yield_strength or the catalogue's), and when there is no strength to check the stress against (none given, none in the catalogue: concrete, masonry, glass). Gradient (delta_t_top, delta_t_bottom, depth): free curvature alpha (dT_top - dT_bottom)/depth, positive for a warmer top (the member hogs); uniform part the mean of the two; with second_moment the end moment E I kappa of a fixed-fixed member, positive when it compresses the top face, and the face stresses stress_top and stress_bottom = stress -/+ E kappa depth / 2 (tension positive). Demo example: a 168.3 x 7.1 mm steel pipe (A = 3600 mm2, r = 57 mm) held between anchors in a demo plant trench, guided every 6 m, warmed by 40 K.
 //	@Tags			restraint
 //	@Produce		json,plain,text/csv,application/xml
 //	@Param			alpha				query		string	false	"coefficient, e.g. 12e-6/K; wins over material"
@@ -602,6 +613,20 @@ func (h *Handler) restraint(p *params) (*Response, error) {
 	st := calc.Restraint(co.Strain, e, r, length)
 	res := &RestraintResults{FreeStrain: si(co.Strain), Stress: si(st.StressPa), Restraint: si(r)}
 	resp.Results = res
+	// The stresses to check: the axial one, and with a held gradient the
+	// two faces'.
+	checked := []float64{st.StressPa}
+	var kappa, top, bottom float64
+	faces := gradient && hasInertia
+	if gradient {
+		kappa = calc.GradientCurvature(co.AlphaMean, float64(dTop), float64(dBottom), depth)
+	}
+	if faces {
+		b := calc.HeldCurvatureStress(e, kappa, depth)
+		top, bottom = st.StressPa-b, st.StressPa+b
+		res.StressTop, res.StressBottom = si(top), si(bottom)
+		checked = append(checked, top, bottom)
+	}
 	if hasArea {
 		res.Force = si(st.StressPa * area)
 		method = append(method, "force = stress x area")
@@ -618,12 +643,12 @@ func (h *Handler) restraint(p *params) (*Response, error) {
 		if d := r * e * co.AlphaMean; d != 0 {
 			res.YieldDeltaT = si(fy / math.Abs(d))
 		}
-		if s := math.Abs(st.StressPa); s > fy {
+		if s := maxAbs(checked); s > fy {
 			res.warnStress(resp, func(f func(float64) string) string {
 				return "the restrained stress " + f(s) + " exceeds the yield strength " + f(fy) + " (" + fyFrom + "): the member yields, the elastic stress and force are upper bounds, and an Euler buckling temperature overestimates the real one"
 			})
 		}
-	} else if st.StressPa != 0 {
+	} else if maxAbs(checked) != 0 {
 		// No capacity to compare with: an empty list of warnings must not
 		// read as a stress that is fine. Concrete, masonry and glass have no
 		// yield strength and crack in tension at a few MPa.
@@ -637,7 +662,13 @@ func (h *Handler) restraint(p *params) (*Response, error) {
 		}
 		s := math.Abs(st.StressPa)
 		res.warnStress(resp, func(f func(float64) string) string {
-			return "the restrained stress " + f(s) + " (" + kind + ") is not checked against any strength: no yield_strength was given and " + none + "; compare it with the member's capacity (a brittle material such as concrete, masonry or glass cracks in tension at a few MPa)"
+			what := "the restrained stress " + f(s) + " (" + kind + ")"
+			if faces {
+				what = "the restrained stresses (axial " + f(st.StressPa) + ", top face " + f(top) + ", bottom face " + f(bottom) + ", tension positive) are"
+			} else {
+				what += " is"
+			}
+			return what + " not checked against any strength: no yield_strength was given and " + none + "; compare with the member's capacity (a brittle material such as concrete, masonry or glass cracks in tension at a few MPa)"
 		})
 	}
 
@@ -675,13 +706,13 @@ func (h *Handler) restraint(p *params) (*Response, error) {
 	}
 
 	if gradient {
-		kappa := calc.GradientCurvature(co.AlphaMean, float64(dTop), float64(dBottom), depth)
 		res.GradientCurvature = si(kappa)
 		method = append(method, "gradient: linear through the depth, uniform part (dT_top + dT_bottom)/2 (section symmetric about mid-depth); free curvature alpha (dT_top - dT_bottom)/depth, positive for a warmer top (the member hogs)")
 		resp.References = append(resp.References, refGradient)
 		if hasInertia {
 			res.EndMoment = si(calc.FixedEndMoment(e, inertia, kappa))
-			method = append(method, "end_moment = E I kappa, the moment that holds a fixed-fixed member straight, positive when it compresses the top face")
+			method = append(method, "end_moment = E I kappa, the moment that holds a fixed-fixed member straight, positive when it compresses the top face",
+				"stress_top, stress_bottom = stress -/+ E kappa depth / 2, the axial stress with the bending stress of the held curvature at each face (M (h/2) / I)")
 			resp.Cautions = append(resp.Cautions, "A fixed-fixed member under a temperature gradient carries the end moment at its supports and along its length: check the connections for it.")
 		}
 	}
@@ -689,6 +720,5 @@ func (h *Handler) restraint(p *params) (*Response, error) {
 	return resp, nil
 }
 
-// mpa formats a stress in MPa for a message.
 // mpa writes a stress in MPa to four significant digits, for messages.
 func mpa(pa float64) string { return formatRounded(pa/1e6) + " MPa" }

@@ -365,3 +365,26 @@ func TestRestraintHotCatalogueProperties(t *testing.T) {
 		t.Errorf("modulus given: warnings %q; want only the yield strength named", d.Warnings)
 	}
 }
+
+// TestRestraintGradientFaceStresses: the README's roof slab (demo data):
+// concrete E = 33 GPa, alpha 10e-6/K (the catalogue's, from memory of
+// EN 1992-1-1), 250 mm deep, top +18 K, soffit +2 K, 60 % restrained
+// axially, fixed at both ends. Axial -0.6 E alpha 10 K = -1.98 MPa; the
+// held curvature adds -/+ E alpha (18 - 2) / 2 = 2.64 MPa at the faces
+// (M c / I, Timoshenko and Goodier, from memory): top -4.62 MPa, soffit
+// +0.66 MPa in tension.
+func TestRestraintGradientFaceStresses(t *testing.T) {
+	r := newTestHandler(t).Router()
+	d := decode(t, do(t, r, "GET", "/v1/restraint?material=concrete&delta_t_top=18%20K&delta_t_bottom=2%20K&depth=250%20mm&second_moment=1.3e-3%20m4&restraint=0.6", "", ""))
+	checkResult(t, d, "stress_top", -4.62, "MPa", 1e-9, 3)
+	checkResult(t, d, "stress_bottom", 0.66, "MPa", 1e-9, 3)
+	if !anyContains(d.Warnings, "bottom face 0.66 MPa") {
+		t.Errorf("warnings %q: want the face stresses in the unchecked-stress warning", d.Warnings)
+	}
+	// Without second_moment the member's ends are not known to hold it:
+	// no face stresses.
+	d = decode(t, do(t, r, "GET", "/v1/restraint?material=concrete&delta_t_top=18%20K&delta_t_bottom=2%20K&depth=250%20mm&restraint=0.6", "", ""))
+	if _, ok := d.Results["stress_top"]; ok {
+		t.Errorf("stress_top given without second_moment: %+v", d.Results)
+	}
+}
