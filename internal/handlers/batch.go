@@ -1025,8 +1025,9 @@ func decodeElement(b []byte) *batchRow {
 		return &batchRow{err: err.Error()}
 	}
 	// A label is never read: whatever its value (null, an array, a
-	// number beyond float64), it is no fault of the row.
-	row.faults = slices.DeleteFunc(faults, func(f FieldError) bool { return isLabel(f.Parameter) })
+	// number beyond float64), it is no fault of the row. Given twice, it
+	// is, as in a CSV header.
+	row.faults = slices.DeleteFunc(faults, func(f FieldError) bool { return isLabel(f.Parameter) && f.Detail != givenTwice })
 	return row
 }
 

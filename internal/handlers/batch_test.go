@@ -448,6 +448,11 @@ func TestBatchRefusals(t *testing.T) {
 	if rows := readCSV(t, wl.Body.Bytes()); wl.Code != http.StatusOK || len(rows) != 2 || rows[1][0] != "B1" || rows[1][4] != "north bay" || rows[1][5] != "28.8" || rows[1][len(rows[1])-1] != "" {
 		t.Errorf("label columns: status %d, want the row computed with its labels echoed: %s", wl.Code, wl.Body)
 	}
+	// A JSON label given twice is a fault of its row, as any member is.
+	wd := post(t, r, "/v1/batch/expansion/linear", "application/json", "", `[{"id": 1, "id": 2, "length": "48 m", "alpha": "12e-6/K", "delta_t": "50 K"}]`)
+	if wd.Code != http.StatusOK || !strings.Contains(wd.Body.String(), "given more than once") {
+		t.Errorf("a label given twice: status %d, want the row's error: %s", wd.Code, wd.Body)
+	}
 	// A JSON label of any value is no fault of its row.
 	wj := post(t, r, "/v1/batch/expansion/linear", "application/json", "", `[{"notes": null, "id": 1.5e400, "ref": [1, 2], "length": "48 m", "alpha": "12e-6/K", "delta_t": "50 K"}]`)
 	if wj.Code != http.StatusOK || !strings.Contains(wj.Body.String(), `"delta_length [mm]":28.8`) || !strings.Contains(wj.Body.String(), `"error":""`) {

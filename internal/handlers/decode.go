@@ -80,7 +80,7 @@ func readQuery(query string, into map[string]raw) []FieldError {
 			r.str, r.origin = v, v
 		}
 		if _, dup := into[k]; dup {
-			errs = append(errs, FieldError{Parameter: k, Detail: "given more than once"})
+			errs = append(errs, FieldError{Parameter: k, Detail: givenTwice})
 			continue
 		}
 		into[k] = r
@@ -160,6 +160,9 @@ func checkJSONType(ct string) error {
 	return nil
 }
 
+// givenTwice is the detail of a parameter or member sent more than once.
+const givenTwice = "given more than once"
+
 // unsupportedCoding describes a body sent with a content coding (gzip,
 // deflate, ...): bodies are read as sent, so RFC 9110 15.5.16 asks for a
 // 415. It returns "" for a body without one, or marked identity.
@@ -229,7 +232,7 @@ func decodeMembers(dec *json.Decoder, into map[string]raw, order *[]string) ([]F
 			v = raw{kind: rawInvalid}
 		}
 		if _, dup := into[key]; dup {
-			errs = append(errs, FieldError{Parameter: key, Detail: "given more than once"})
+			errs = append(errs, FieldError{Parameter: key, Detail: givenTwice})
 			continue
 		}
 		into[key] = v

@@ -519,9 +519,15 @@ func (h *Handler) restraint(p *params) (*Response, error) {
 	var kFactor, radius, inertia float64
 	hasInertia := p.has("second_moment")
 	bok := true
+	// A gradient's end moment and face stresses hold for ends fixed
+	// against rotation: without end_condition, as the gradient case
+	// assumes, or with end_condition=fixed. Pinned, fixed-pinned or
+	// cantilever ends let the member curve (fully or in part).
+	rotationHeld := true
 	if buckling {
 		if name, ok := p.choice("end_condition", calc.EndConditions()...); ok {
 			kFactor, _ = calc.EffectiveLengthFactor(name)
+			rotationHeld = name == "fixed"
 		} else {
 			bok = false
 		}
@@ -617,7 +623,7 @@ func (h *Handler) restraint(p *params) (*Response, error) {
 	// two faces'.
 	checked := []float64{st.StressPa}
 	var kappa, top, bottom float64
-	faces := gradient && hasInertia
+	faces := gradient && hasInertia && rotationHeld
 	if gradient {
 		kappa = calc.GradientCurvature(co.AlphaMean, float64(dTop), float64(dBottom), depth)
 	}
@@ -709,7 +715,10 @@ func (h *Handler) restraint(p *params) (*Response, error) {
 		res.GradientCurvature = si(kappa)
 		method = append(method, "gradient: linear through the depth, uniform part (dT_top + dT_bottom)/2 (section symmetric about mid-depth); free curvature alpha (dT_top - dT_bottom)/depth, positive for a warmer top (the member hogs)")
 		resp.References = append(resp.References, refGradient)
-		if hasInertia {
+		if hasInertia && !rotationHeld {
+			resp.Warnings = append(resp.Warnings, "end_condition lets the ends turn, so the gradient's curvature is free (fully or in part): no end_moment or face stresses are given, which assume both ends fixed against rotation")
+		}
+		if faces {
 			res.EndMoment = si(calc.FixedEndMoment(e, inertia, kappa))
 			method = append(method, "end_moment = E I kappa, the moment that holds a fixed-fixed member straight, positive when it compresses the top face",
 				"stress_top, stress_bottom = stress -/+ E kappa depth / 2, the axial stress with the bending stress of the held curvature at each face (M (h/2) / I)")

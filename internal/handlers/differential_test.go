@@ -381,6 +381,17 @@ func TestRestraintGradientFaceStresses(t *testing.T) {
 	if !anyContains(d.Warnings, "bottom face 0.66 MPa") {
 		t.Errorf("warnings %q: want the face stresses in the unchecked-stress warning", d.Warnings)
 	}
+	// Ends that turn (pinned, fixed-pinned, cantilever) let the member
+	// curve: no end moment, no face stresses, and a warning says why;
+	// end_condition=fixed holds it as the default does.
+	for cond, held := range map[string]bool{"pinned": false, "cantilever": false, "fixed-pinned": false, "fixed": true} {
+		d := decode(t, do(t, r, "GET", "/v1/restraint?material=structural-steel&delta_t_top=150%20K&delta_t_bottom=-10%20K&depth=500%20mm&second_moment=1e-3%20m4&area=0.02%20m2&length=6%20m&end_condition="+cond, "", ""))
+		_, top := d.Results["stress_top"]
+		_, moment := d.Results["end_moment"]
+		if top != held || moment != held || anyContains(d.Warnings, "lets the ends turn") == held {
+			t.Errorf("end_condition=%s: stress_top %v, end_moment %v, warnings %q; want both given: %v", cond, top, moment, d.Warnings, held)
+		}
+	}
 	// Without second_moment the member's ends are not known to hold it:
 	// no face stresses.
 	d = decode(t, do(t, r, "GET", "/v1/restraint?material=concrete&delta_t_top=18%20K&delta_t_bottom=2%20K&depth=250%20mm&restraint=0.6", "", ""))
