@@ -16,31 +16,14 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
-	"sync"
 	"testing"
 	"time"
+
+	"github.com/thermalmovement/service/internal/logging"
 )
 
-// logBuffer collects the JSON log lines of run, safe for concurrent use.
-type logBuffer struct {
-	mu  sync.Mutex
-	buf bytes.Buffer
-}
-
-func (b *logBuffer) Write(p []byte) (int, error) {
-	b.mu.Lock()
-	defer b.mu.Unlock()
-	return b.buf.Write(p)
-}
-
-func (b *logBuffer) String() string {
-	b.mu.Lock()
-	defer b.mu.Unlock()
-	return b.buf.String()
-}
-
-// servingLine waits for run's "serving" log line and returns it.
-func (b *logBuffer) servingLine(t *testing.T, done <-chan error) map[string]any {
+// servingLine waits for run's "serving" log line in b and returns it.
+func servingLine(t *testing.T, b *logging.Buffer, done <-chan error) map[string]any {
 	t.Helper()
 	deadline := time.Now().Add(10 * time.Second)
 	for time.Now().Before(deadline) {
@@ -65,12 +48,12 @@ func noEnv(string) string { return "" }
 
 // startRun starts run with args and returns the API address, the
 // metrics address and run's result channel.
-func startRun(t *testing.T, ctx context.Context, args []string, getenv func(string) string) (addr, metricsAddr string, done chan error, logs *logBuffer) {
+func startRun(t *testing.T, ctx context.Context, args []string, getenv func(string) string) (addr, metricsAddr string, done chan error, logs *logging.Buffer) {
 	t.Helper()
-	logs = &logBuffer{}
+	logs = &logging.Buffer{}
 	done = make(chan error, 1)
 	go func() { done <- run(ctx, args, getenv, logs) }()
-	line := logs.servingLine(t, done)
+	line := servingLine(t, logs, done)
 	return line["addr"].(string), line["metrics_addr"].(string), done, logs
 }
 

@@ -313,8 +313,8 @@ func (h *Handler) modulusFrom(p *params, resp *Response, name, matName string) (
 		func(m *materials.Material) *materials.Property { return m.Modulus },
 		func() (float64, bool) {
 			v, ok := p.positive(name, units.Stress)
-			if ok && v < softest {
-				p.warnings = append(p.warnings, name+" is "+formatRounded(v/1e3)+" kPa, under 1 MPa: as soft as a sealant or a foam; if a metal, concrete, glass or timber is meant, check the unit (GPa?)")
+			if ok {
+				p.checkSoft(name, v, "as soft as a sealant or a foam; if a metal, concrete, glass or timber is meant, check the unit (GPa?)")
 			}
 			return v, ok
 		},
@@ -569,8 +569,8 @@ func (h *Handler) restraint(p *params) (*Response, error) {
 	fyFrom := ""
 	if p.has("yield_strength") {
 		fy, hasFy = p.positive("yield_strength", units.Stress)
-		if hasFy && fy < softest {
-			p.warnings = append(p.warnings, "yield_strength is "+formatRounded(fy/1e3)+" kPa, under 1 MPa: weaker than any structural material; check the unit (MPa?)")
+		if hasFy {
+			p.checkSoft("yield_strength", fy, "weaker than any structural material; check the unit (MPa?)")
 		}
 		fyFrom = "request"
 	} else if m := peekMaterial(p, "material"); m != nil && m.Yield != nil {

@@ -331,7 +331,8 @@ func TestErrorsListBounded(t *testing.T) {
 
 // TestConflictsAreNotUnknown: a documented parameter that conflicts with
 // another, or waits on a missing one, is never called an unknown
-// parameter; the real fault is named instead.
+// parameter; the real fault is named instead. No physical value is
+// checked.
 func TestConflictsAreNotUnknown(t *testing.T) {
 	r := newTestHandler(t).Router()
 	for _, tc := range []struct {
@@ -399,7 +400,7 @@ func TestCompressedBodyRefused(t *testing.T) {
 
 // TestVolumeBadBetaNamesOnlyBeta: a volume with an unreadable beta
 // beside a material is refused for beta alone; material, which beta
-// overrides, is not an unknown parameter.
+// overrides, is not an unknown parameter. No physical value is checked.
 func TestVolumeBadBetaNamesOnlyBeta(t *testing.T) {
 	r := newTestHandler(t).Router()
 	for _, query := range []string{
@@ -414,7 +415,8 @@ func TestVolumeBadBetaNamesOnlyBeta(t *testing.T) {
 }
 
 // TestFaultsBesideAConflict: a conflict does not hide a bad value beside
-// it, and a missing container coefficient is named once.
+// it, and a missing container coefficient is named once. No physical
+// value is checked.
 func TestFaultsBesideAConflict(t *testing.T) {
 	r := newTestHandler(t).Router()
 	w := do(t, r, http.MethodGet, "/v1/expansion/linear?length=48%20m&alpha=12e-6/K&delta_t=50%20K&t_initial=20%20mm4", "", "")

@@ -399,11 +399,14 @@ func (h *Handler) volume(p *params) (*Response, error) {
 			break
 		}
 		b := liquid.Beta
-		beyond := iv.absolute && len(liquid.BetaWarnings(iv.t1, iv.t2)) > 0
-		if beyond && !extra {
+		var outside []string
+		if iv.absolute {
+			outside = liquid.BetaWarnings(iv.t1, iv.t2)
+		}
+		if len(outside) > 0 && !extra {
 			// As for a solid with a constant only: its range is all the
 			// data there is (and past it a liquid may boil or freeze).
-			p.unprocessable("material", liquid.BetaWarnings(iv.t1, iv.t2)[0]+"; set extrapolate=true to extrapolate, or give beta")
+			p.unprocessable("material", outside[0]+"; set extrapolate=true to extrapolate, or give beta")
 			break
 		}
 		r, ok = calc.VolumeBeta(vol, b.Value, iv.dT), vok
@@ -413,9 +416,8 @@ func (h *Handler) volume(p *params) (*Response, error) {
 			resp.Method = "dV = beta V0 dT with the constant mean volumetric coefficient of " + liquid.ID
 			resp.References = append(resp.References, b.Citations...)
 		}
-		if beyond {
-			resp.Warnings = append(resp.Warnings, liquid.BetaWarnings(iv.t1, iv.t2)...)
-		} else if !iv.absolute {
+		resp.Warnings = append(resp.Warnings, outside...)
+		if !iv.absolute {
 			resp.Warnings = append(resp.Warnings, liquid.BetaDeltaWarnings(iv.dT)...)
 		}
 	default:

@@ -158,7 +158,7 @@ type UnitList struct {
 //	@Router			/v1/units [get]
 func (h *Handler) listUnits(c *gin.Context) {
 	sendJSON(c, http.StatusOK, UnitList{Units: units.Symbols(), Notes: []string{
-		"Products, quotients and powers combine: N/mm2, um/(m*K), in/(in*degF), m^2, kg/m3, and UCUM's K-1 and N.mm-2; '.' and '*' multiply, '/' divides, left to right.",
+		"Products, quotients and powers combine: N/mm2, um/(m*K), in/(in*degF), m^2, m², K⁻¹, kg/m3, and UCUM's K-1 and N.mm-2; '.', '*', '·' or a space multiply (kN m, mm/(m K); a space after '/' is refused as ambiguous), '/' divides, left to right.",
 		"Fields named t_* are absolute temperatures (10 degF = 260.928 K); fields named delta_t* are temperature differences (10 degF = 5.5556 K). A coefficient per degF is per Fahrenheit interval.",
 		"Factors are exact where the definition is (NIST SP 811): 1 in = 0.0254 m, 1 lbf = 4.4482216152605 N, 1 degF interval = 5/9 K; this list writes them to 12 significant digits, as every answer writes numbers, and the parser uses them in full.",
 	}})

@@ -220,6 +220,14 @@ const (
 // mPa for 355 MPa) than one of them. Common practice, no published source.
 const softest = 1e6 // Pa
 
+// checkSoft warns of a stress-like value under softest; why says what it
+// would mean and which unit to check.
+func (p *params) checkSoft(name string, pa float64, why string) {
+	if pa < softest {
+		p.warnings = append(p.warnings, name+" is "+formatRounded(pa/1e3)+" kPa, under 1 MPa: "+why)
+	}
+}
+
 func dimMessage(err error, q units.Quantity, d units.Dim) string {
 	if errors.Is(err, units.ErrNoUnit) {
 		return "a bare number is not " + d.Article() + " " + d.String() + ": give its unit, such as " + strconv.Quote(d.Example())

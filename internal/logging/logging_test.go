@@ -1,33 +1,12 @@
 package logging
 
 import (
-	"bytes"
 	"strings"
-	"sync"
 	"testing"
 
 	"github.com/prometheus/client_golang/prometheus"
 	"go.uber.org/zap/zapcore"
 )
-
-// buffer collects log lines, safe for concurrent use (the syncer flushes
-// from its own goroutine).
-type buffer struct {
-	mu  sync.Mutex
-	buf bytes.Buffer
-}
-
-func (b *buffer) Write(p []byte) (int, error) {
-	b.mu.Lock()
-	defer b.mu.Unlock()
-	return b.buf.Write(p)
-}
-
-func (b *buffer) String() string {
-	b.mu.Lock()
-	defer b.mu.Unlock()
-	return b.buf.String()
-}
 
 // TestSamplesBelowWarn: sampling leaves out repeated info lines but never
 // a warning or an error, whose request ids callers quote; the counter
@@ -37,7 +16,7 @@ func (b *buffer) String() string {
 func TestSamplesBelowWarn(t *testing.T) {
 	const n = 300
 	for _, sampling := range []bool{true, false} {
-		var out buffer
+		var out Buffer
 		reg := prometheus.NewRegistry()
 		log, ws := New(zapcore.InfoLevel, sampling, &out, reg)
 		for range n {
@@ -75,7 +54,7 @@ func TestSamplesBelowWarn(t *testing.T) {
 // are not counted as dropped.
 func TestLevel(t *testing.T) {
 	for _, sampling := range []bool{true, false} {
-		var out buffer
+		var out Buffer
 		log, ws := New(zapcore.WarnLevel, sampling, &out, prometheus.NewRegistry())
 		log.Info("request")
 		log.Warn("request")

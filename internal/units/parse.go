@@ -361,9 +361,9 @@ func (p *unitParser) expr() (float64, Dim, error) {
 			div, divided = true, true
 			p.i++
 		case p.s[p.i-1] == ' ' && !one && (p.s[p.i] == '(' || isSymbolByte(p.s, p.i)):
-			// Not after the unit one: "2 1 m" is a stray digit, not 2 m.
 			// A space between two terms multiplies, as in "N m" and
-			// "mm/(m K)"; after a "/" it would be ambiguous ("mm/m K").
+			// "mm/(m K)"; after a "/" it would be ambiguous ("mm/m K"),
+			// and after the unit one it is a stray digit ("2 1 m").
 			if divided {
 				return 0, Dim{}, p.fail(ErrSyntax, "a space after \"/\" is ambiguous: write the divisor in parentheses, such as \"mm/(m K)\", or use \"*\" or \".\"")
 			}

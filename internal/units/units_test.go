@@ -1213,10 +1213,11 @@ func BenchmarkAppendNumber(b *testing.B) {
 }
 
 // TestSymbolFactorsAsWritten: the list of units gives every factor as
-// every output writes numbers (12 significant digits), so that a decibar
-// reads 0.1 and a nanolitre 1e-12, not their float64 noise; the SI factors
-// themselves are NIST SP 811's (from memory, not re-read): 1 psi =
-// 6894.757 Pa to its 7 digits.
+// every output writes numbers (12 significant digits), so that a microbar
+// reads 0.1 (Pa), a decibar 1e4 and a nanolitre 1e-12, not their float64
+// noise; the SI factors themselves are NIST SP 811's (1 bar = 1e5 Pa,
+// 1 L = 1e-3 m3; from memory, not re-read): 1 psi = 6894.757 Pa to its
+// 7 digits.
 func TestSymbolFactorsAsWritten(t *testing.T) {
 	want := map[string]float64{"dbar": 1e4, "ubar": 0.1, "nL": 1e-12, "1/degF": 1.8}
 	for _, s := range units.Symbols() {
