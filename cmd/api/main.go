@@ -67,6 +67,7 @@ type config struct {
 	maxInFlight     int64
 	batchMaxRows    int64
 	batchMaxBytes   int64
+	answerCache     int64
 }
 
 // parseConfig reads flags, falling back to environment variables, then
@@ -147,6 +148,7 @@ func newFlagSet(c *config, getenv func(string) string, out io.Writer) (*flag.Fla
 	integer(&c.maxInFlight, "max-in-flight", 256, "requests served at once; beyond, 503 with Retry-After (0: no bound)")
 	integer(&c.batchMaxRows, "batch-max-rows", 100000, "rows of one batch request")
 	integer(&c.batchMaxBytes, "batch-max-bytes", 32<<20, "body of one batch request, bytes")
+	integer(&c.answerCache, "answer-cache-bytes", 16<<20, "memory of the cache of whole answers to calculation GETs, bytes, so that a repeated request is not computed again; 0: no cache")
 	return fs, errs
 }
 
@@ -188,6 +190,9 @@ func (c config) check() error {
 	}
 	if c.batchMaxRows < 1 || c.batchMaxRows > 1<<31-1 {
 		bad("--batch-max-rows must be positive")
+	}
+	if c.answerCache < 0 {
+		bad("--answer-cache-bytes must not be negative (0: no cache)")
 	}
 	if c.batchMaxBytes < 1024 {
 		bad("--batch-max-bytes must be at least 1024")
@@ -264,7 +269,8 @@ func run(ctx context.Context, args []string, getenv func(string) string, stdout 
 	reg.MustRegister(collectors.NewGoCollector(), collectors.NewProcessCollector(collectors.ProcessCollectorOpts{}))
 	metricsHandler := promhttp.HandlerFor(reg, promhttp.HandlerOpts{Registry: reg})
 	opts := handlers.Options{Version: version, Commit: commit, MaxBodyBytes: cfg.maxBodyBytes, MaxURLBytes: int(cfg.maxURLBytes),
-		MaxInFlight: int(cfg.maxInFlight), BatchMaxRows: int(cfg.batchMaxRows), BatchMaxBytes: cfg.batchMaxBytes, APIKeys: keys}
+		MaxInFlight: int(cfg.maxInFlight), BatchMaxRows: int(cfg.batchMaxRows), BatchMaxBytes: cfg.batchMaxBytes, APIKeys: keys,
+		AnswerCacheBytes: cfg.answerCache}
 	if cfg.metricsAddr == "" {
 		opts.Metrics = metricsHandler
 	}

@@ -239,6 +239,14 @@ func TestConfigFromEnv(t *testing.T) {
 	if c.shutdownDelay != 7*time.Second || c.maxInFlight != 12 || c.addr != "127.0.0.1:7777" || c.shutdownTimeout != 15*time.Second {
 		t.Errorf("parseConfig = %+v, want delay 7s from env, max-in-flight 12 from env, addr from the flag, timeout default 15s", c)
 	}
+	// The cache of answers is on by default, 16 MiB; 0 turns it off.
+	if c.answerCache != 16<<20 {
+		t.Errorf("answer cache %d bytes by default, want 16 MiB", c.answerCache)
+	}
+	c, err = parseConfig(nil, func(k string) string { return map[string]string{"ANSWER_CACHE_BYTES": "0"}[k] }, io.Discard)
+	if err != nil || c.answerCache != 0 {
+		t.Errorf("ANSWER_CACHE_BYTES=0: %d, %v", c.answerCache, err)
+	}
 }
 
 // TestBadConfigFailsAtStart checks that run refuses a bad setting before
@@ -270,6 +278,7 @@ func TestBadConfigFailsAtStart(t *testing.T) {
 		{"bad env integer", nil, map[string]string{"MAX_IN_FLIGHT": "many"}, "MAX_IN_FLIGHT"},
 		{"bad env boolean", nil, map[string]string{"LOG_SAMPLING": "sometimes"}, "LOG_SAMPLING"},
 		{"negative in-flight bound", []string{"--max-in-flight", "-1"}, nil, "--max-in-flight"},
+		{"negative answer cache", []string{"--answer-cache-bytes", "-1"}, nil, "--answer-cache-bytes"},
 		{"bad log level", []string{"--log-level", "loud"}, nil, "--log-level"},
 		{"address without port", []string{"--addr", "localhost"}, nil, "--addr"},
 		{"port not a number", []string{"--addr", ":http-alt"}, nil, "--addr"},

@@ -42,7 +42,11 @@ var benchBodies = map[string]string{
 // logger (logging.New at info level, sampled, here writing to io.Discard)
 // and a fresh registry. At benchmark rates about one request in a hundred
 // writes its line; BenchmarkStages/log-line measures one line.
-func benchHandler(tb testing.TB) *Handler {
+func benchHandler(tb testing.TB) *Handler { return benchHandlerWith(tb, 0) }
+
+// benchHandlerWith is benchHandler with a cache of answers of
+// answerCache bytes (0: none, every request computed).
+func benchHandlerWith(tb testing.TB, answerCache int64) *Handler {
 	tb.Helper()
 	cat, err := materials.Load()
 	if err != nil {
@@ -51,7 +55,7 @@ func benchHandler(tb testing.TB) *Handler {
 	reg := prometheus.NewRegistry()
 	log, ws := logging.New(zapcore.InfoLevel, true, io.Discard, reg)
 	tb.Cleanup(func() { _ = ws.Stop() })
-	h, err := New(log, reg, cat, Options{Version: "bench", MaxBodyBytes: 64 << 10})
+	h, err := New(log, reg, cat, Options{Version: "bench", MaxBodyBytes: 64 << 10, AnswerCacheBytes: answerCache})
 	if err != nil {
 		tb.Fatal(err)
 	}
@@ -119,6 +123,25 @@ func BenchmarkHandlerGET(b *testing.B) {
 			})
 		}
 	}
+}
+
+// BenchmarkHandlerGETCached is the linear GET answered from the cache of
+// answers, as cmd/api keeps them by default: a repeated request. The
+// benchmarks above compute every request.
+func BenchmarkHandlerGETCached(b *testing.B) {
+	r := benchHandlerWith(b, 16<<20).Router()
+	req := httptest.NewRequest(http.MethodGet, "/v1/expansion/linear?"+benchQueries["linear"], nil)
+	benchCheck(b, r, req, "")
+	w := &benchWriter{h: http.Header{}}
+	b.ReportAllocs()
+	for b.Loop() {
+		w.reset()
+		r.ServeHTTP(w, req)
+	}
+	if w.status != http.StatusOK || w.h.Get("Cache-Status") != "thermal-movement; hit" {
+		b.Fatalf("status %d, Cache-Status %q: not a hit", w.status, w.h.Get("Cache-Status"))
+	}
+	b.SetBytes(int64(w.n))
 }
 
 func BenchmarkHandlerPOST(b *testing.B) {

@@ -40,6 +40,9 @@ type Options struct {
 	// BatchMaxRows and BatchMaxBytes bound one batch request.
 	BatchMaxRows  int
 	BatchMaxBytes int64
+	// AnswerCacheBytes bounds the memory of the cache of calculation
+	// answers (answers.go). 0: no cache.
+	AnswerCacheBytes int64
 }
 
 // Handler holds what every request needs. Build it with New.
@@ -53,6 +56,8 @@ type Handler struct {
 	inFlight atomic.Int64
 	// unitCache reads the quantities of every request and batch row.
 	unitCache units.Cache
+	// answers keeps whole answers of calculation GETs; nil: none.
+	answers *answers
 }
 
 // New returns the handlers, registering their metrics on reg.
@@ -63,11 +68,12 @@ func New(log *zap.Logger, reg prometheus.Registerer, cat *materials.Catalogue, o
 	if opts.MaxURLBytes <= 0 {
 		opts.MaxURLBytes = 8 << 10
 	}
-	m, err := newMetrics(reg, opts, cat.Version)
+	answers := newAnswers(opts.AnswerCacheBytes)
+	m, err := newMetrics(reg, opts, cat.Version, answers)
 	if err != nil {
 		return nil, err
 	}
-	h := &Handler{log: log, cat: cat, opts: opts, metrics: m}
+	h := &Handler{log: log, cat: cat, opts: opts, metrics: m, answers: answers}
 	h.ready.Store(true)
 	return h, nil
 }
@@ -207,10 +213,21 @@ func (h *Handler) calculation(spec calcSpec) gin.HandlerFunc {
 		checks = cn.checkNames()
 	}
 	return func(c *gin.Context) {
+		query := c.Request.URL.RawQuery
+		get := h.answers != nil && c.Request.Method != http.MethodPost
+		key := answerKey{spec.name, query}
+		if get {
+			if a, ok := h.answers.get(key); ok {
+				h.metrics.answerHits.Inc()
+				c.Writer.Header()["Cache-Status"] = cacheStatusHit
+				send(c, http.StatusOK, a.contentType, a.body)
+				return
+			}
+			h.metrics.answerMisses.Inc()
+		}
 		x := exchanges.Get().(*exchange)
 		defer x.release()
 		vals, p, out := x.vals, &x.p, &x.out
-		query := c.Request.URL.RawQuery
 		faults := readQuery(query, vals)
 		queryFaults := len(faults)
 		if c.Request.Method == http.MethodPost {
@@ -252,7 +269,20 @@ func (h *Handler) calculation(spec calcSpec) gin.HandlerFunc {
 			return
 		}
 		h.complete(resp, spec.name, p)
-		x.buf = h.write(c, out, resp, items, x.buf[:0])
+		body, ct, buf, err := h.encode(out, resp, items, x.buf[:0])
+		x.buf = buf
+		if err != nil {
+			h.problem(c, out, err)
+			return
+		}
+		if get {
+			status := cacheStatusMiss
+			if h.answers.put(key, ct, body) {
+				status = cacheStatusStored
+			}
+			c.Writer.Header()["Cache-Status"] = status
+		}
+		send(c, http.StatusOK, ct, body)
 	}
 }
 
@@ -423,28 +453,22 @@ type renderer interface {
 	render(out *outputOptions, resp *Response) (body []byte, contentType string, err error)
 }
 
-// write writes the response in the format asked for; buf is a buffer to
-// write JSON into, returned for reuse.
-func (h *Handler) write(c *gin.Context, out *outputOptions, resp *Response, items []resultItem, buf []byte) []byte {
+// encode writes the answer in the format asked for and returns it with
+// its content type; buf is a buffer to write JSON into, returned for
+// reuse (body may be part of it).
+func (h *Handler) encode(out *outputOptions, resp *Response, items []resultItem, buf []byte) (body []byte, contentType string, _ []byte, err error) {
 	if r, ok := resp.Results.(renderer); ok {
 		body, ct, err := r.render(out, resp)
-		if err != nil {
-			h.problem(c, out, err)
-			return buf
-		}
-		if body != nil {
-			send(c, http.StatusOK, ct, body)
-			return buf
+		if err != nil || body != nil {
+			return body, ct, buf, err
 		}
 	}
-	var body []byte
 	switch out.format {
 	case "text":
 		body = textBody(items, checksOf(resp.Results), out.result)
 		if body == nil {
-			h.problem(c, out, newError(errUnprocessable, "result "+out.result+" is not computed for these inputs",
-				FieldError{Parameter: "result", Detail: "not computed for these inputs"}))
-			return buf
+			return nil, "", buf, newError(errUnprocessable, "result "+out.result+" is not computed for these inputs",
+				FieldError{Parameter: "result", Detail: "not computed for these inputs"})
 		}
 	case "csv":
 		body = csvBody(items, checksOf(resp.Results), resp.Warnings, resp.Cautions)
@@ -456,14 +480,11 @@ func (h *Handler) write(c *gin.Context, out *outputOptions, resp *Response, item
 			body = buf
 			break
 		}
-		var err error
 		if body, err = json.Marshal(resp); err != nil {
-			h.problem(c, out, err)
-			return buf
+			return nil, "", buf, err
 		}
 	}
-	send(c, http.StatusOK, contentTypes[out.format], body)
-	return buf
+	return body, contentTypes[out.format], buf, nil
 }
 
 // send writes a whole answer: the status, the Content-Type, and the

@@ -143,7 +143,10 @@ type metrics struct {
 	requests *prometheus.CounterVec
 	duration *prometheus.HistogramVec
 	calcErrs *prometheus.CounterVec
-	idPrefix string
+	// answerHits and answerMisses count the calculation GETs written from
+	// the cache of answers and those computed.
+	answerHits, answerMisses prometheus.Counter
+	idPrefix                 string
 	// bound caches the label-bound collectors per method, route and code,
 	// so that a request costs no label lookup.
 	bound sync.Map // boundKey -> boundMetrics
@@ -159,7 +162,7 @@ type boundMetrics struct {
 	duration prometheus.Observer
 }
 
-func newMetrics(reg prometheus.Registerer, opts Options, materialsVersion string) (*metrics, error) {
+func newMetrics(reg prometheus.Registerer, opts Options, materialsVersion string, answers *answers) (*metrics, error) {
 	m := &metrics{
 		requests: prometheus.NewCounterVec(prometheus.CounterOpts{
 			Name: "thermal_http_requests_total",
@@ -174,13 +177,25 @@ func newMetrics(reg prometheus.Registerer, opts Options, materialsVersion string
 			Name: "thermal_calculation_errors_total",
 			Help: "Calculation requests refused, by calculation and problem type.",
 		}, []string{"calculation", "kind"}),
+		answerHits: prometheus.NewCounter(prometheus.CounterOpts{
+			Name: "thermal_answer_cache_hits_total",
+			Help: "Calculation GETs answered from the cache of answers (--answer-cache-bytes).",
+		}),
+		answerMisses: prometheus.NewCounter(prometheus.CounterOpts{
+			Name: "thermal_answer_cache_misses_total",
+			Help: "Calculation GETs computed because the cache of answers held no answer to them (not counted with no cache).",
+		}),
 		idPrefix: newIDPrefix(),
 	}
+	held := prometheus.NewGaugeFunc(prometheus.GaugeOpts{
+		Name: "thermal_answer_cache_bytes",
+		Help: "Bytes of keys and bodies held by the cache of answers.",
+	}, answers.bytes)
 	build := prometheus.NewGaugeVec(prometheus.GaugeOpts{
 		Name: "thermal_build_info",
 		Help: "Build of the running service; the value is always 1.",
 	}, []string{"version", "commit", "materials"})
-	for _, c := range []prometheus.Collector{m.requests, m.duration, m.calcErrs, build} {
+	for _, c := range []prometheus.Collector{m.requests, m.duration, m.calcErrs, m.answerHits, m.answerMisses, held, build} {
 		if err := reg.Register(c); err != nil {
 			return nil, err
 		}

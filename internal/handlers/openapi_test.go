@@ -166,7 +166,7 @@ func TestResponsesMatchDocument(t *testing.T) {
 
 // documentedHeaders are the headers the middleware, the router and the
 // batch writer set, which the document must declare where they are sent.
-var documentedHeaders = []string{"X-Request-Id", "ETag", "Cache-Control", "Allow", "WWW-Authenticate", "Retry-After", "Trailer"}
+var documentedHeaders = []string{"X-Request-Id", "ETag", "Cache-Control", "Cache-Status", "Allow", "WWW-Authenticate", "Retry-After", "Trailer"}
 
 // checkHeadersDocumented checks that the headers the middleware sets, as
 // far as w sent them in the head of its answer, are declared on its

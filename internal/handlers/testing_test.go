@@ -14,14 +14,19 @@ import (
 	"github.com/thermalmovement/service/internal/materials"
 )
 
-// newTestHandler returns handlers over the embedded catalogue.
+// testAnswerCacheBytes is the cache of answers of the test handlers:
+// cmd/api's default, so that the tests see what callers get.
+const testAnswerCacheBytes = 16 << 20
+
+// newTestHandler returns handlers over the embedded catalogue, keeping
+// answers as cmd/api does by default.
 func newTestHandler(t testing.TB) *Handler {
 	t.Helper()
 	cat, err := materials.Load()
 	if err != nil {
 		t.Fatal(err)
 	}
-	h, err := New(zap.NewNop(), prometheus.NewRegistry(), cat, Options{Version: "test"})
+	h, err := New(zap.NewNop(), prometheus.NewRegistry(), cat, Options{Version: "test", AnswerCacheBytes: testAnswerCacheBytes})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -198,7 +198,7 @@ func complete(doc *openapi3.T) {
 			}
 			refusals(path, method, op)
 			fixResponses(op)
-			describeHeaders(op, method == "GET" && strings.HasPrefix(path, "/v1/"))
+			describeHeaders(op, method == "GET" && strings.HasPrefix(path, "/v1/"), method == "GET" && item.Post != nil)
 			if strings.HasPrefix(path, "/v1/batch/") {
 				completeBatch(op)
 			}
@@ -224,6 +224,10 @@ func sharedHeaders(doc *openapi3.T) {
 			"(without api_key) and the service and materials versions. Send it back in If-None-Match."),
 		"Cache-Control": header("public, max-age=300 on a GET of /v1/ (private, max-age=300 when the deployment requires API " +
 			"keys); no-store on every error and redirect, on an on_error=inline answer that reports one, and on every batch answer."),
+		"Cache-Status": header("On a 200 GET of a calculation, when the service keeps answers (--answer-cache-bytes, on by " +
+			"default), RFC 9211: `thermal-movement; hit` when the answer was written from the cache, `thermal-movement; " +
+			"fwd=uri-miss; stored` when it was computed and kept, `thermal-movement; fwd=uri-miss` when it was computed and " +
+			"was too large to keep. The bytes are the same either way."),
 		"Allow": header("The methods the path takes, e.g. GET, POST."),
 		"WWW-Authenticate": {Value: &openapi3.Header{Parameter: openapi3.Parameter{
 			Description: `Bearer realm="thermal-movement": send the key as Authorization: Bearer <key>, or in the api_key query parameter.`,
@@ -247,8 +251,8 @@ func sharedHeaders(doc *openapi3.T) {
 // on every answer, Cache-Control on errors and redirects (and on the 200
 // of an operation with on_error, whose inline error is no-store), and for
 // a cacheable GET the ETag and Cache-Control of its 200, If-None-Match
-// and the 304.
-func describeHeaders(op *openapi3.Operation, cacheable bool) {
+// and the 304; for the GET of a calculation the Cache-Status of its 200.
+func describeHeaders(op *openapi3.Operation, cacheable, calculation bool) {
 	ref := func(name string) *openapi3.HeaderRef { return &openapi3.HeaderRef{Ref: "#/components/headers/" + name} }
 	inline := queryParam(op, "on_error") != nil
 	op.Parameters = append(op.Parameters, &openapi3.ParameterRef{Ref: "#/components/parameters/X-Request-Id"})
@@ -273,6 +277,9 @@ func describeHeaders(op *openapi3.Operation, cacheable bool) {
 		}
 		if cacheable && (code == "200" || code == "304") {
 			r.Headers["ETag"] = ref("ETag")
+		}
+		if calculation && code == "200" {
+			r.Headers["Cache-Status"] = ref("Cache-Status")
 		}
 	}
 }

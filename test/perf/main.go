@@ -112,6 +112,8 @@ type config struct {
 	keep        bool
 	floors      bool
 	work        []time.Duration
+	answerCache int64
+	computed    bool
 }
 
 func main() {
@@ -136,6 +138,8 @@ func main() {
 	flag.StringVar(&c.pprofAddr, "pprof-addr", "", "with -inprocess: serve net/http/pprof on this address, e.g. 127.0.0.1:6060")
 	flag.BoolVar(&c.keep, "keep", false, "keep the temporary directory (binary, logs)")
 	flag.BoolVar(&c.floors, "floors", false, "also measure two floors between bare and service: gin answering the bytes, and the service's router and middleware answering them")
+	flag.Int64Var(&c.answerCache, "answer-cache-bytes", 16<<20, "the service's cache of answers, bytes (its --answer-cache-bytes; 0: none, every request computed)")
+	flag.BoolVar(&c.computed, "computed", true, "also measure the service with no cache of answers (--answer-cache-bytes 0, a second child process): every request computed")
 	work := flag.String("work", "10us,20us", "also measure the bare server spending these amounts of arithmetic per request before it answers (comma-separated; empty: none), to read the target as a CPU budget")
 	flag.Parse()
 	for _, f := range strings.Split(*work, ",") {
@@ -176,16 +180,31 @@ func run(c config) error {
 		defer os.RemoveAll(dir)
 	}
 
-	var svc *server
-	if c.inprocess {
-		svc, err = startInProcess(dir, c.pprofAddr)
-	} else {
-		svc, err = startService(dir)
+	// The service, and the same build computing every request: both
+	// child processes of one binary, or both in this process.
+	var svc, computed *server
+	var bin string
+	if !c.inprocess {
+		if bin, err = buildService(dir); err != nil {
+			return err
+		}
 	}
-	if err != nil {
+	start := func(name, pprofAddr string, answerCache int64) (*server, error) {
+		if c.inprocess {
+			return startInProcess(dir, name, pprofAddr, answerCache)
+		}
+		return startService(dir, bin, name, answerCache)
+	}
+	if svc, err = start("service", c.pprofAddr, c.answerCache); err != nil {
 		return err
 	}
 	defer svc.stop()
+	if c.computed {
+		if computed, err = start("computed", "", 0); err != nil {
+			return err
+		}
+		defer computed.stop()
+	}
 
 	body, ctype, err := fetch(svc.base + linearPath)
 	if err != nil {
@@ -203,6 +222,13 @@ func run(c config) error {
 		kinds = append(kinds, workKind+d.String())
 	}
 	var others []*server
+	if computed != nil {
+		if b2, ct2, err := fetch(computed.base + computed.path); err != nil {
+			return fmt.Errorf("computed service: %w", err)
+		} else if !bytes.Equal(b2, body) || ct2 != ctype {
+			return errors.New("the service without its cache does not answer the same bytes")
+		}
+	}
 	for _, kind := range kinds {
 		s, err := startBare(dir, kind, bodyFile, ctype)
 		if err != nil {
@@ -228,7 +254,11 @@ func run(c config) error {
 	fmt.Printf("request: GET %s -> %d bytes, %s\n", linearPath, len(body), ctype)
 	fmt.Printf("rounds: %d x %s per server, alternating order, after %s warm-up each; load average before: %s\n\n", c.rounds, c.duration, c.warmup, loadAvg())
 
-	targets := append([]*server{svc}, others...)
+	targets := []*server{svc}
+	if computed != nil {
+		targets = append(targets, computed)
+	}
+	targets = append(targets, others...)
 	if c.warmup > 0 {
 		for _, s := range targets {
 			if _, err := load(c, s, body, c.warmup); err != nil {
@@ -270,7 +300,17 @@ func run(c config) error {
 	fmt.Printf("ratio service/bare: %.3f (median req/s over median req/s; per-round ratios %.3f..%.3f)\n",
 		ratio, ratios[0], ratios[len(ratios)-1])
 	fmt.Printf("%s: throughput ratio %.3f, target >= %.2f\n", verdict(ratio >= targetRatio), ratio, targetRatio)
-	cpuBudget(res[svc], res[bare])
+	cpuBudget("service", res[svc], res[bare])
+	computedRatio := 0.0
+	if computed != nil {
+		// The figure of a request the service has not answered before:
+		// the same build with no cache of answers computes every one.
+		f := summarise(res[computed])
+		computedRatio = f.rps / b.rps
+		fmt.Printf("computed every time (--answer-cache-bytes 0): median %.0f req/s (spread %.0f..%.0f), ratio to bare %.3f\n",
+			f.rps, f.rpsMin, f.rpsMax, computedRatio)
+		cpuBudget("computed", res[computed], res[bare])
+	}
 	// The bare server does the same work every round: when its rounds
 	// differ much, something else was using the machine.
 	if noise := b.rpsMax / b.rpsMin; noise > maxNoise {
@@ -280,13 +320,13 @@ func run(c config) error {
 	if c.floors {
 		fmt.Println("floors: the same bytes answered by gin alone, and by the service's router and middleware (request id, metrics,")
 		fmt.Println("  the sampled log, recovery, limits, load shedding, keys, ETag and caching headers) with no calculation:")
-		for _, s := range others[1:3] {
+		for _, s := range others[1:3] { // gin, middleware
 			f := summarise(res[s])
 			fmt.Printf("  %-10s median %9.0f req/s, ratio to bare %.3f, server CPU %.1f µs/req\n", s.name, f.rps, f.rps/b.rps, micros(medianOf(res[s], serverCPU)))
 		}
 	}
 	if len(c.work) > 0 {
-		workBudget(res, others[len(others)-len(c.work):], c.work, b.rps, medianOf(res[bare], serverCPU), ratio)
+		workBudget(res, others[len(others)-len(c.work):], c.work, b.rps, medianOf(res[bare], serverCPU), ratio, computedRatio)
 	}
 
 	if c.inprocess && (c.cpuprofile != "" || c.memprofile != "") {
@@ -335,15 +375,15 @@ func micros(d time.Duration) float64 { return float64(d) / float64(time.Microsec
 // request, and the ratio about (bare + its load generator) / (service +
 // its load generator). It prints the medians and the service CPU per
 // request at which the ratio would reach the target.
-func cpuBudget(svc, bare []result) {
+func cpuBudget(name string, svc, bare []result) {
 	s, sc, b, bc := medianOf(svc, serverCPU), medianOf(svc, clientCPU), medianOf(bare, serverCPU), medianOf(bare, clientCPU)
 	if s <= 0 || b <= 0 {
 		return
 	}
-	fmt.Printf("CPU per request (medians): service %.1f + load generator %.1f µs; bare %.1f + load generator %.1f µs\n",
-		micros(s), micros(sc), micros(b), micros(bc))
-	fmt.Printf("  (bare + its load generator) / (service + its load generator) = %.3f; the ratio %.2f needs the service at about %.0f µs/req\n",
-		micros(b+bc)/micros(s+sc), targetRatio, micros(b+bc)/targetRatio-micros(sc))
+	fmt.Printf("CPU per request (medians): %s %.1f + load generator %.1f µs; bare %.1f + load generator %.1f µs\n",
+		name, micros(s), micros(sc), micros(b), micros(bc))
+	fmt.Printf("  (bare + its load generator) / (%s + its load generator) = %.3f; the ratio %.2f needs it at about %.0f µs/req\n",
+		name, micros(b+bc)/micros(s+sc), targetRatio, micros(b+bc)/targetRatio-micros(sc))
 }
 
 // maxNoise is the largest max/min of the bare server's rounds for which
@@ -453,23 +493,31 @@ func freeAddr() (string, error) {
 }
 
 // startService builds ./cmd/api and runs it as a child process.
-func startService(dir string) (*server, error) {
+// buildService builds ./cmd/api into dir and returns the binary's path.
+func buildService(dir string) (string, error) {
 	out, err := exec.Command("go", "env", "GOMOD").Output()
 	if err != nil {
-		return nil, fmt.Errorf("go env GOMOD: %w", err)
+		return "", fmt.Errorf("go env GOMOD: %w", err)
 	}
 	root := filepath.Dir(strings.TrimSpace(string(out)))
 	bin := filepath.Join(dir, "api")
 	build := exec.Command("go", "build", "-o", bin, "./cmd/api")
 	build.Dir, build.Stdout, build.Stderr = root, os.Stderr, os.Stderr
 	if err := build.Run(); err != nil {
-		return nil, fmt.Errorf("go build ./cmd/api: %w", err)
+		return "", fmt.Errorf("go build ./cmd/api: %w", err)
 	}
+	return bin, nil
+}
+
+// startService runs the built service as a child process with its
+// default settings but the cache of answers, of answerCache bytes.
+func startService(dir, bin, name string, answerCache int64) (*server, error) {
 	addr, err := freeAddr()
 	if err != nil {
 		return nil, err
 	}
-	return startChild("service", filepath.Join(dir, "service.log"), addr, bin, "--addr", addr)
+	return startChild(name, filepath.Join(dir, name+".log"), addr, bin, "--addr", addr,
+		"--answer-cache-bytes", strconv.FormatInt(answerCache, 10))
 }
 
 // startBare runs this program again as the bare server, or as one of the
@@ -551,20 +599,20 @@ func waitReady(url string, exited <-chan struct{}) error {
 }
 
 // newHandler is the service's handler with cmd/api's default options.
-func newHandler(log *zap.Logger, reg *prometheus.Registry) (*handlers.Handler, error) {
+func newHandler(log *zap.Logger, reg *prometheus.Registry, answerCache int64) (*handlers.Handler, error) {
 	cat, err := materials.Load()
 	if err != nil {
 		return nil, err
 	}
 	return handlers.New(log, reg, cat, handlers.Options{Version: "perf", Commit: "perf", MaxBodyBytes: 64 << 10,
 		Metrics: promhttp.HandlerFor(reg, promhttp.HandlerOpts{Registry: reg}), MaxInFlight: 256,
-		BatchMaxRows: 100000, BatchMaxBytes: 32 << 20})
+		BatchMaxRows: 100000, BatchMaxBytes: 32 << 20, AnswerCacheBytes: answerCache})
 }
 
 // startInProcess serves handlers.New(...).Router() as cmd/api does, with
 // the same logger, registry and server timeouts.
-func startInProcess(dir, pprofAddr string) (*server, error) {
-	lf, err := os.Create(filepath.Join(dir, "service.log"))
+func startInProcess(dir, name, pprofAddr string, answerCache int64) (*server, error) {
+	lf, err := os.Create(filepath.Join(dir, name+".log"))
 	if err != nil {
 		return nil, err
 	}
@@ -572,7 +620,7 @@ func startInProcess(dir, pprofAddr string) (*server, error) {
 	reg := prometheus.NewRegistry()
 	log, logOut := logging.New(zapcore.InfoLevel, true, lf, reg)
 	reg.MustRegister(collectors.NewGoCollector(), collectors.NewProcessCollector(collectors.ProcessCollectorOpts{}))
-	h, err := newHandler(log, reg)
+	h, err := newHandler(log, reg, answerCache)
 	if err != nil {
 		return nil, err
 	}
@@ -615,7 +663,7 @@ func startInProcess(dir, pprofAddr string) (*server, error) {
 		}
 	}()
 	addr := ln.Addr().String()
-	return &server{name: "service", path: linearPath, addr: addr, base: "http://" + addr, srv: srv, peak: peak.Load, stop: func() {
+	return &server{name: name, path: linearPath, addr: addr, base: "http://" + addr, srv: srv, peak: peak.Load, stop: func() {
 		close(stopSampler)
 		ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
 		defer cancel()
@@ -681,7 +729,7 @@ func serveBare(args []string) error {
 		// Logged as the service logs by default, sampled, to nowhere.
 		reg := prometheus.NewRegistry()
 		log, _ := logging.New(zapcore.InfoLevel, true, io.Discard, reg)
-		h, err := newHandler(log, reg)
+		h, err := newHandler(log, reg, 0)
 		if err != nil {
 			return err
 		}

@@ -42,9 +42,9 @@ func secondsPerStep() float64 {
 // about linearly with the CPU a server adds per request: the slope is
 // fitted through (0, 1) by least squares, and gives the work the target
 // ratio leaves, and the work at which the bare server would match the
-// service's ratio. The work is the busy loop's, timed alone; under load
+// ratios of the service and of the service computing every request. The work is the busy loop's, timed alone; under load
 // each floor's measured CPU grows by more, which is printed beside it.
-func workBudget(res map[*server][]result, servers []*server, work []time.Duration, bareRPS float64, bareCPU time.Duration, serviceRatio float64) {
+func workBudget(res map[*server][]result, servers []*server, work []time.Duration, bareRPS float64, bareCPU time.Duration, serviceRatio, computedRatio float64) {
 	fmt.Println("work floors: the bare server spending a fixed amount of arithmetic per request (a busy loop timed alone at")
 	fmt.Println("  its start-up) before it answers the same bytes:")
 	var num, den float64
@@ -63,10 +63,17 @@ func workBudget(res map[*server][]result, servers []*server, work []time.Duratio
 		return
 	}
 	fmt.Printf("  read as a budget: the ratio %.2f leaves about %.0f µs of such work per request for all the service does\n", targetRatio, (1/targetRatio-1)/slope)
-	fmt.Print("  beyond writing the bytes (router, middleware, calculation)")
-	if serviceRatio >= 1 {
-		fmt.Printf("; the service's ratio %.3f is at or above bare (noise?)\n", serviceRatio)
-		return
+	fmt.Println("  beyond writing the bytes (router, middleware, calculation)")
+	for _, x := range []struct {
+		name  string
+		ratio float64
+	}{{"service", serviceRatio}, {"computed", computedRatio}} {
+		switch {
+		case x.ratio <= 0: // not measured
+		case x.ratio >= 1:
+			fmt.Printf("  the %s's ratio %.3f is at or above bare (noise?)\n", x.name, x.ratio)
+		default:
+			fmt.Printf("  at its ratio %.3f the %s answers as the bare server doing about %.0f µs of it would\n", x.ratio, x.name, (1/x.ratio-1)/slope)
+		}
 	}
-	fmt.Printf("; at its ratio %.3f the service answers as the\n  bare server doing about %.0f µs of it would\n", serviceRatio, (1/serviceRatio-1)/slope)
 }
