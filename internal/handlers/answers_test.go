@@ -7,6 +7,7 @@ import (
 	"net/http/httptest"
 	"regexp"
 	"strings"
+	"sync"
 	"testing"
 
 	"github.com/prometheus/client_golang/prometheus"
@@ -236,5 +237,44 @@ func TestAnswerCacheKeys(t *testing.T) {
 	post := do(t, r, http.MethodPost, "/v1/expansion/linear?format=text", "application/json", `{"length": "48 m", "alpha": "12e-6/K", "delta_t": "50 K"}`)
 	if post.Code != http.StatusOK || post.Header().Get("Cache-Status") != "" || post.Body.String() != first.Body.String() {
 		t.Errorf("POST: %d, Cache-Status %q, %q", post.Code, post.Header().Get("Cache-Status"), post.Body)
+	}
+}
+
+// TestAnswerCacheConcurrent serves the same and different GETs from many
+// goroutines through a cache small enough to evict all the time; run it
+// with -race. Every answer must be the one computed for its query.
+func TestAnswerCacheConcurrent(t *testing.T) {
+	plain, _ := newHandlerKeeping(t, 0)
+	keeping, _ := newHandlerKeeping(t, 64<<10) // room for about 60 answers
+	pr, kr := plain.Router(), keeping.Router()
+	target := func(i int) string {
+		return fmt.Sprintf("/v1/expansion/linear?length=%d%%20m&alpha=12e-6/K&delta_t=50%%20K", 1+i%97)
+	}
+	want := map[string]string{}
+	for i := 0; i < 97; i++ {
+		want[target(i)] = getWith(pr, target(i)).Body.String()
+	}
+	var wg sync.WaitGroup
+	errs := make(chan string, 8)
+	for g := 0; g < 8; g++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for i := 0; i < 400; i++ {
+				tg := target(i * (g + 1))
+				if got := getWith(kr, tg).Body.String(); got != want[tg] {
+					errs <- fmt.Sprintf("%s: %q, want %q", tg, truncate(got), truncate(want[tg]))
+					return
+				}
+			}
+		}()
+	}
+	wg.Wait()
+	close(errs)
+	for e := range errs {
+		t.Error(e)
+	}
+	if keeping.answers.held > keeping.answers.max {
+		t.Errorf("%d bytes held, over %d", keeping.answers.held, keeping.answers.max)
 	}
 }
