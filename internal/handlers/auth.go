@@ -190,17 +190,27 @@ func takeAPIKey(r *http.Request) (key string, found, many bool) {
 
 // mayHoldAPIKey reports whether a raw query may name api_key: spelled out,
 // or in a name with escapes, which might decode to it. Most queries hold
-// neither and are left alone at once.
+// neither and are left alone after one pass over their bytes.
 func mayHoldAPIKey(q string) bool {
-	for q != "" {
-		var pair string
-		pair, q, _ = strings.Cut(q, "&")
-		name, _, _ := strings.Cut(pair, "=")
-		if name == apiKeyParam || strings.ContainsAny(name, "%+") {
+	start, inName := 0, true // where the current name starts; whether i is in it
+	for i := 0; i < len(q); i++ {
+		switch c := q[i]; {
+		case c == '&':
+			if inName && q[start:i] == apiKeyParam {
+				return true
+			}
+			start, inName = i+1, true
+		case !inName:
+		case c == '=':
+			if q[start:i] == apiKeyParam {
+				return true
+			}
+			inName = false
+		case c == '%' || c == '+':
 			return true
 		}
 	}
-	return false
+	return inName && q[start:] == apiKeyParam
 }
 
 // retryAfterSeconds is the Retry-After of a shed request.

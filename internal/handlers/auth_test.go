@@ -365,3 +365,29 @@ func TestShedOff(t *testing.T) {
 		b.release()
 	}
 }
+
+// TestMayHoldAPIKey: the quick test before the api_key search finds every
+// query that names it, spelled out or escaped, and lets pass the ones
+// whose names cannot (values may hold anything). No physical value.
+func TestMayHoldAPIKey(t *testing.T) {
+	for q, want := range map[string]bool{
+		"":                           false,
+		"api_key":                    true,
+		"api_key=k":                  true,
+		"length=1%20m&api_key=k":     true,
+		"api_key&length=1":           true,
+		"length=1&api_key":           true,
+		"api%5Fkey=k":                true,
+		"api+key=k":                  true,
+		"length=48%20m&alpha=1e-5":   false,
+		"length=api_key":             false,
+		"x=1&api_keys=2":             false,
+		"api_ke=1&y=api_key":         false,
+		"length=1&&=api_key":         false,
+		"note=a+b%20c&delta_t=5%20K": false,
+	} {
+		if got := mayHoldAPIKey(q); got != want {
+			t.Errorf("mayHoldAPIKey(%q) = %v, want %v", q, got, want)
+		}
+	}
+}

@@ -1,12 +1,13 @@
 package handlers
 
 import (
-	"crypto/sha256"
+	"encoding/binary"
 	"encoding/hex"
 	"net/http"
 	"strconv"
 	"strings"
 
+	"github.com/cespare/xxhash/v2"
 	"github.com/gin-gonic/gin"
 )
 
@@ -85,10 +86,14 @@ func (h *Handler) etag(c *gin.Context) string {
 		b = append(b, ':')
 		b = append(b, s...)
 	}
-	sum := sha256.Sum256(b)
-	var out [34]byte
-	out[0], out[33] = '"', '"'
-	hex.Encode(out[1:33], sum[:16])
+	// A tag needs to tell apart the answers of one URL, not to resist an
+	// adversary: a 64-bit hash does (xxHash64, stable across processes
+	// and replicas, unlike hash/maphash).
+	var sum [8]byte
+	binary.BigEndian.PutUint64(sum[:], xxhash.Sum64(b))
+	var out [18]byte
+	out[0], out[17] = '"', '"'
+	hex.Encode(out[1:17], sum[:])
 	return string(out[:])
 }
 

@@ -7,9 +7,15 @@
 //	(b) a bare net/http server, also a child process (this program run
 //	    again with -serve-bare), whose handler returns the byte-identical
 //	    body of (a)'s answer to the linear expansion GET, with the same
-//	    Content-Type;
+//	    Content-Type; and
+//	(a') the same build run again with --answer-cache-bytes 0
+//	    ("computed"): the service as it answers a request it has not
+//	    answered before. The service as it runs by default answers the
+//	    repeated request from its cache of answers; the target is judged
+//	    on it, and computed's ratio is printed beside it (-computed=false
+//	    leaves it out);
 //
-// drives both alternately with the same closed-loop load generator (a
+// drives them all alternately with the same closed-loop load generator (a
 // fixed number of workers, each with one keep-alive connection, sending
 // the next request when the previous answer is read), and prints the
 // requests per second and p50/p99 latency of each, their ratio and the
