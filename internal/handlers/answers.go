@@ -20,13 +20,13 @@ import (
 // answer. What a caller gets is the same bytes either way; the request
 // is still logged, counted in the metrics and given its own request id.
 //
-// The memory is bounded: the keys and bodies held never exceed max bytes
-// (the least recently used answers go first), and an answer larger than
-// max/64 is not kept.
+// The memory is bounded: the entries held (keys, bodies and their own
+// overhead) never exceed max bytes (the least recently used answers go
+// first), and an answer larger than max/64 is not kept.
 type answers struct {
 	mu   sync.Mutex
 	lru  *simplelru.LRU[answerKey, answer]
-	held int64 // bytes of the keys and bodies held
+	held int64 // bytes held: keys, bodies and the entries' overhead
 	max  int64
 }
 
@@ -72,8 +72,15 @@ func newAnswers(max int64) *answers {
 	return a
 }
 
+// entryOverhead is what an entry costs beyond its strings and body: the
+// list element, the map slot and the headers of the strings and slice, a
+// little over 100 bytes on 64-bit platforms, rounded up. Counting it keeps
+// the bound true for the smallest answers (a bare number of format=text).
+const entryOverhead = 128
+
+// size is the memory an entry takes, as the cache counts it.
 func (k answerKey) size(v answer) int64 {
-	return int64(len(k.calculation) + len(k.query) + len(v.contentType) + len(v.body))
+	return entryOverhead + int64(len(k.calculation)+len(k.query)+len(v.contentType)+len(v.body))
 }
 
 // bytes is the memory held, for the metrics.
@@ -105,6 +112,7 @@ func (a *answers) put(k answerKey, contentType string, body []byte) bool {
 	}
 	v := answer{contentType: contentType}
 	if k.size(v)+int64(len(body)) > a.max/64 {
+		// So that one answer cannot take a large share of the cache.
 		return false
 	}
 	// The key's strings belong to the request (the query is a slice of

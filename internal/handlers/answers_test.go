@@ -34,7 +34,7 @@ func heldSum(a *answers) int64 {
 func TestAnswersBounded(t *testing.T) {
 	const max = 64 << 10 // entries of up to 1 KiB
 	a := newAnswers(max)
-	body := bytes.Repeat([]byte("x"), 900)
+	body := bytes.Repeat([]byte("x"), 800)
 	key := func(i int) answerKey { return answerKey{"expansion/linear", fmt.Sprintf("length=%d%%20m", i)} }
 	for i := 0; i < 1000; i++ {
 		if !a.put(key(i), "text/plain", body) {
@@ -52,7 +52,7 @@ func TestAnswersBounded(t *testing.T) {
 		t.Errorf("held %d, but the entries add up to %d", a.held, got)
 	}
 	if n := a.lru.Len(); n < 60 || n > 70 {
-		t.Errorf("%d entries held, want about %d", n, max/(900+30))
+		t.Errorf("%d entries held, want about %d", n, max/(800+entryOverhead+40))
 	}
 	if _, ok := a.get(key(1)); ok {
 		t.Error("an early entry not used since is still held")

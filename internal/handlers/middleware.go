@@ -189,7 +189,7 @@ func newMetrics(reg prometheus.Registerer, opts Options, materialsVersion string
 	}
 	held := prometheus.NewGaugeFunc(prometheus.GaugeOpts{
 		Name: "thermal_answer_cache_bytes",
-		Help: "Bytes of keys and bodies held by the cache of answers.",
+		Help: "Bytes held by the cache of answers: keys, bodies and each entry's bookkeeping.",
 	}, answers.bytes)
 	build := prometheus.NewGaugeVec(prometheus.GaugeOpts{
 		Name: "thermal_build_info",
