@@ -20,14 +20,16 @@ import (
 // answer. What a caller gets is the same bytes either way; the request
 // is still logged, counted in the metrics and given its own request id.
 //
-// The memory is bounded: the entries held (keys, bodies and their own
-// overhead) never exceed max bytes (the least recently used answers go
-// first), and an answer larger than max/64 is not kept.
+// The memory is bounded: the entries held, as counted (keys, bodies and
+// entryOverhead each), never exceed max bytes (the least recently used
+// answers go first), and an answer larger than max/64 is not kept.
 type answers struct {
 	mu   sync.Mutex
 	lru  *simplelru.LRU[answerKey, answer]
-	held int64 // bytes held: keys, bodies and the entries' overhead
+	held int64 // bytes held as counted: keys, bodies and entryOverhead each
 	max  int64
+	// evicted counts the answers dropped to make room, for the metrics.
+	evicted int64
 }
 
 // answerKey is what decides an answer: the calculation and its query.
@@ -50,10 +52,6 @@ var (
 	cacheStatusMiss   = []string{"thermal-movement; fwd=uri-miss"}
 )
 
-// minAnswerBytes is the smallest room an entry takes, keys and body
-// together, used to bound the number of entries the list may hold.
-const minAnswerBytes = 256
-
 // newAnswers returns a cache of at most max bytes, or nil (no cache)
 // when max is zero or negative.
 func newAnswers(max int64) *answers {
@@ -61,29 +59,32 @@ func newAnswers(max int64) *answers {
 		return nil
 	}
 	a := &answers{max: max}
-	entries := max / minAnswerBytes
+	entries := max / entryOverhead // no entry takes less
 	if entries < 1 {
 		entries = 1
 	}
 	// NewLRU fails only for a size below 1.
 	a.lru, _ = simplelru.NewLRU(int(min(entries, 1<<24)), func(k answerKey, v answer) {
 		a.held -= k.size(v)
+		a.evicted++
 	})
 	return a
 }
 
 // entryOverhead is what an entry costs beyond its strings and body: the
-// list element, the map slot and the headers of the strings and slice, a
-// little over 100 bytes on 64-bit platforms, rounded up. Counting it keeps
-// the bound true for the smallest answers (a bare number of format=text).
-const entryOverhead = 128
+// list element (128 bytes in golang-lru v2), the map slot, the headers of
+// the strings and the slice, and the rounding of the allocations. 256
+// bytes holds for the smallest answers (a bare number of format=text,
+// which takes about 300 bytes of heap in all) and is a little generous for
+// the larger ones, so that the heap the cache takes stays near max.
+const entryOverhead = 256
 
 // size is the memory an entry takes, as the cache counts it.
 func (k answerKey) size(v answer) int64 {
 	return entryOverhead + int64(len(k.calculation)+len(k.query)+len(v.contentType)+len(v.body))
 }
 
-// bytes is the memory held, for the metrics.
+// bytes is the memory held as counted, for the metrics.
 func (a *answers) bytes() float64 {
 	if a == nil {
 		return 0
@@ -91,6 +92,17 @@ func (a *answers) bytes() float64 {
 	a.mu.Lock()
 	defer a.mu.Unlock()
 	return float64(a.held)
+}
+
+// evictions is the number of answers dropped to make room, for the
+// metrics.
+func (a *answers) evictions() float64 {
+	if a == nil {
+		return 0
+	}
+	a.mu.Lock()
+	defer a.mu.Unlock()
+	return float64(a.evicted)
 }
 
 // get returns the answer kept for k, if any. A nil cache holds nothing.

@@ -8,6 +8,7 @@ import (
 	"net/http/httptest"
 	"net/url"
 	"reflect"
+	"strconv"
 	"testing"
 
 	"github.com/gin-gonic/gin"
@@ -142,6 +143,33 @@ func BenchmarkHandlerGETCached(b *testing.B) {
 		b.Fatalf("status %d, Cache-Status %q: not a hit", w.status, w.h.Get("Cache-Status"))
 	}
 	b.SetBytes(int64(w.n))
+}
+
+// BenchmarkHandlerGETDistinct sends linear GETs that all differ (the
+// length steps by 1 mm), with the cache of answers and without: the cost
+// a request the service has not answered before pays for being kept.
+func BenchmarkHandlerGETDistinct(b *testing.B) {
+	for _, tc := range []struct {
+		name  string
+		bytes int64
+	}{{"none", 0}, {"cache", 16 << 20}} {
+		b.Run(tc.name, func(b *testing.B) {
+			r := benchHandlerWith(b, tc.bytes).Router()
+			req := httptest.NewRequest(http.MethodGet, "/v1/expansion/linear?"+benchQueries["linear"], nil)
+			w := &benchWriter{h: http.Header{}}
+			b.ReportAllocs()
+			i := 0
+			for b.Loop() {
+				i++
+				req.URL.RawQuery = "length=" + strconv.Itoa(48000+i) + "%20mm&alpha=12e-6/K&delta_t=50%20K"
+				w.reset()
+				r.ServeHTTP(w, req)
+			}
+			if w.status != http.StatusOK {
+				b.Fatalf("status %d", w.status)
+			}
+		})
+	}
 }
 
 func BenchmarkHandlerPOST(b *testing.B) {

@@ -223,7 +223,6 @@ func (h *Handler) calculation(spec calcSpec) gin.HandlerFunc {
 				send(c, http.StatusOK, a.contentType, a.body)
 				return
 			}
-			h.metrics.answerMisses.Inc()
 		}
 		x := exchanges.Get().(*exchange)
 		defer x.release()
@@ -276,6 +275,7 @@ func (h *Handler) calculation(spec calcSpec) gin.HandlerFunc {
 			return
 		}
 		if get {
+			h.metrics.answerMisses.Inc()
 			status := cacheStatusMiss
 			if h.answers.put(key, ct, body) {
 				status = cacheStatusStored

@@ -144,7 +144,7 @@ type metrics struct {
 	duration *prometheus.HistogramVec
 	calcErrs *prometheus.CounterVec
 	// answerHits and answerMisses count the calculation GETs written from
-	// the cache of answers and those computed.
+	// the cache of answers and the 200 answers computed instead.
 	answerHits, answerMisses prometheus.Counter
 	idPrefix                 string
 	// bound caches the label-bound collectors per method, route and code,
@@ -179,23 +179,27 @@ func newMetrics(reg prometheus.Registerer, opts Options, materialsVersion string
 		}, []string{"calculation", "kind"}),
 		answerHits: prometheus.NewCounter(prometheus.CounterOpts{
 			Name: "thermal_answer_cache_hits_total",
-			Help: "Calculation GETs answered from the cache of answers (--answer-cache-bytes).",
+			Help: "Calculation GETs (and HEADs) answered from the cache of answers (--answer-cache-bytes).",
 		}),
 		answerMisses: prometheus.NewCounter(prometheus.CounterOpts{
 			Name: "thermal_answer_cache_misses_total",
-			Help: "Calculation GETs computed because the cache of answers held no answer to them (not counted with no cache).",
+			Help: "Calculation GETs (and HEADs) answered 200 by computing, because the cache of answers held no answer to them (kept or, too large, not); refusals are not counted. Not counted with no cache.",
 		}),
 		idPrefix: newIDPrefix(),
 	}
+	evicted := prometheus.NewCounterFunc(prometheus.CounterOpts{
+		Name: "thermal_answer_cache_evictions_total",
+		Help: "Answers dropped from the cache of answers to make room for newer ones.",
+	}, answers.evictions)
 	held := prometheus.NewGaugeFunc(prometheus.GaugeOpts{
 		Name: "thermal_answer_cache_bytes",
-		Help: "Bytes held by the cache of answers: keys, bodies and each entry's bookkeeping.",
+		Help: "Bytes held by the cache of answers, as counted against --answer-cache-bytes: keys, bodies and 256 bytes of bookkeeping per answer.",
 	}, answers.bytes)
 	build := prometheus.NewGaugeVec(prometheus.GaugeOpts{
 		Name: "thermal_build_info",
 		Help: "Build of the running service; the value is always 1.",
 	}, []string{"version", "commit", "materials"})
-	for _, c := range []prometheus.Collector{m.requests, m.duration, m.calcErrs, m.answerHits, m.answerMisses, held, build} {
+	for _, c := range []prometheus.Collector{m.requests, m.duration, m.calcErrs, m.answerHits, m.answerMisses, evicted, held, build} {
 		if err := reg.Register(c); err != nil {
 			return nil, err
 		}

@@ -14,19 +14,17 @@ import (
 	"github.com/thermalmovement/service/internal/materials"
 )
 
-// testAnswerCacheBytes is the cache of answers of the test handlers:
-// cmd/api's default, so that the tests see what callers get.
-const testAnswerCacheBytes = 16 << 20
-
-// newTestHandler returns handlers over the embedded catalogue, keeping
-// answers as cmd/api does by default.
+// newTestHandler returns handlers over the embedded catalogue. They keep
+// no answers, so that a repeated request is computed again and state left
+// behind by one request would show in the next; answers_test.go compares
+// the answers of a handler that keeps them with these.
 func newTestHandler(t testing.TB) *Handler {
 	t.Helper()
 	cat, err := materials.Load()
 	if err != nil {
 		t.Fatal(err)
 	}
-	h, err := New(zap.NewNop(), prometheus.NewRegistry(), cat, Options{Version: "test", AnswerCacheBytes: testAnswerCacheBytes})
+	h, err := New(zap.NewNop(), prometheus.NewRegistry(), cat, Options{Version: "test"})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -224,10 +224,11 @@ func sharedHeaders(doc *openapi3.T) {
 			"(without api_key) and the service and materials versions. Send it back in If-None-Match."),
 		"Cache-Control": header("public, max-age=300 on a GET of /v1/ (private, max-age=300 when the deployment requires API " +
 			"keys); no-store on every error and redirect, on an on_error=inline answer that reports one, and on every batch answer."),
-		"Cache-Status": header("On a 200 GET of a calculation, when the service keeps answers (--answer-cache-bytes, on by " +
-			"default), RFC 9211: `thermal-movement; hit` when the answer was written from the cache, `thermal-movement; " +
-			"fwd=uri-miss; stored` when it was computed and kept, `thermal-movement; fwd=uri-miss` when it was computed and " +
-			"was too large to keep. The bytes are the same either way."),
+		"Cache-Status": header("On the 200 answer of a calculation's GET (or HEAD), when the service keeps answers " +
+			"(--answer-cache-bytes, on by default), RFC 9211: `thermal-movement; hit` when the answer was written from the " +
+			"cache, `thermal-movement; fwd=uri-miss; stored` when it was computed and kept, `thermal-movement; fwd=uri-miss` " +
+			"when it was computed and was too large to keep. The bytes are the same either way. Not sent on a refusal, on an " +
+			"on_error=inline #ERROR: answer (never kept), or on a POST."),
 		"Allow": header("The methods the path takes, e.g. GET, POST."),
 		"WWW-Authenticate": {Value: &openapi3.Header{Parameter: openapi3.Parameter{
 			Description: `Bearer realm="thermal-movement": send the key as Authorization: Bearer <key>, or in the api_key query parameter.`,
