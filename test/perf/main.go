@@ -305,7 +305,13 @@ func run(c config) error {
 	ratio := a.rps / b.rps
 	fmt.Printf("ratio service/bare: %.3f (median req/s over median req/s; per-round ratios %.3f..%.3f)\n",
 		ratio, ratios[0], ratios[len(ratios)-1])
-	fmt.Printf("%s: throughput ratio %.3f, target >= %.2f\n", verdict(ratio >= targetRatio), ratio, targetRatio)
+	what := "the service as it runs"
+	if c.answerCache > 0 {
+		// Every request after the first repeats it: all but one are
+		// answered from the cache of answers.
+		what = "a repeated request (the service as it runs, answering from its cache of answers)"
+	}
+	fmt.Printf("%s: throughput ratio %.3f for %s, target >= %.2f\n", verdict(ratio >= targetRatio), ratio, what, targetRatio)
 	cpuBudget("service", res[svc], res[bare])
 	computedRatio := 0.0
 	if computed != nil {
@@ -315,6 +321,8 @@ func run(c config) error {
 		computedRatio = f.rps / b.rps
 		fmt.Printf("computed every time (--answer-cache-bytes 0): median %.0f req/s (spread %.0f..%.0f), ratio to bare %.3f\n",
 			f.rps, f.rpsMin, f.rpsMax, computedRatio)
+		fmt.Printf("%s: throughput ratio %.3f for a new request (computed; with the cache on, a new request also pays for being kept), target >= %.2f\n",
+			verdict(computedRatio >= targetRatio), computedRatio, targetRatio)
 		cpuBudget("computed", res[computed], res[bare])
 	}
 	// The bare server does the same work every round: when its rounds
