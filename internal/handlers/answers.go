@@ -85,24 +85,20 @@ func (k answerKey) size(v answer) int64 {
 }
 
 // bytes is the memory held as counted, for the metrics.
-func (a *answers) bytes() float64 {
-	if a == nil {
-		return 0
-	}
-	a.mu.Lock()
-	defer a.mu.Unlock()
-	return float64(a.held)
-}
+func (a *answers) bytes() float64 { return a.read(func() int64 { return a.held }) }
 
 // evictions is the number of answers dropped to make room, for the
 // metrics.
-func (a *answers) evictions() float64 {
+func (a *answers) evictions() float64 { return a.read(func() int64 { return a.evicted }) }
+
+// read returns a figure of the cache under its lock; 0 with no cache.
+func (a *answers) read(figure func() int64) float64 {
 	if a == nil {
 		return 0
 	}
 	a.mu.Lock()
 	defer a.mu.Unlock()
-	return float64(a.evicted)
+	return float64(figure())
 }
 
 // get returns the answer kept for k, if any. A nil cache holds nothing.

@@ -100,6 +100,24 @@ func benchCheck(b *testing.B, r *gin.Engine, req *http.Request, body string) {
 	}
 }
 
+// benchGET serves req once to check it, then in the benchmark loop, and
+// returns the writer of the last answer, a 200.
+func benchGET(b *testing.B, r *gin.Engine, req *http.Request) *benchWriter {
+	b.Helper()
+	benchCheck(b, r, req, "")
+	w := &benchWriter{h: http.Header{}}
+	b.ReportAllocs()
+	for b.Loop() {
+		w.reset()
+		r.ServeHTTP(w, req)
+	}
+	if w.status != http.StatusOK {
+		b.Fatalf("status %d", w.status)
+	}
+	b.SetBytes(int64(w.n))
+	return w
+}
+
 func BenchmarkHandlerGET(b *testing.B) {
 	r := benchHandler(b).Router()
 	for _, name := range []string{"linear", "area", "volume"} {
@@ -109,18 +127,7 @@ func BenchmarkHandlerGET(b *testing.B) {
 				if format != "json" {
 					q += "&format=" + format
 				}
-				req := httptest.NewRequest(http.MethodGet, "/v1/expansion/"+name+"?"+q, nil)
-				benchCheck(b, r, req, "")
-				w := &benchWriter{h: http.Header{}}
-				b.ReportAllocs()
-				for b.Loop() {
-					w.reset()
-					r.ServeHTTP(w, req)
-				}
-				if w.status != http.StatusOK {
-					b.Fatalf("status %d", w.status)
-				}
-				b.SetBytes(int64(w.n))
+				benchGET(b, r, httptest.NewRequest(http.MethodGet, "/v1/expansion/"+name+"?"+q, nil))
 			})
 		}
 	}
@@ -131,18 +138,10 @@ func BenchmarkHandlerGET(b *testing.B) {
 // benchmarks above compute every request.
 func BenchmarkHandlerGETCached(b *testing.B) {
 	r := benchHandlerWith(b, 16<<20).Router()
-	req := httptest.NewRequest(http.MethodGet, "/v1/expansion/linear?"+benchQueries["linear"], nil)
-	benchCheck(b, r, req, "")
-	w := &benchWriter{h: http.Header{}}
-	b.ReportAllocs()
-	for b.Loop() {
-		w.reset()
-		r.ServeHTTP(w, req)
+	w := benchGET(b, r, httptest.NewRequest(http.MethodGet, "/v1/expansion/linear?"+benchQueries["linear"], nil))
+	if got := w.h.Get("Cache-Status"); got != "thermal-movement; hit" {
+		b.Fatalf("Cache-Status %q: not a hit", got)
 	}
-	if w.status != http.StatusOK || w.h.Get("Cache-Status") != "thermal-movement; hit" {
-		b.Fatalf("status %d, Cache-Status %q: not a hit", w.status, w.h.Get("Cache-Status"))
-	}
-	b.SetBytes(int64(w.n))
 }
 
 // BenchmarkHandlerGETDistinct sends linear GETs that all differ (the
