@@ -412,7 +412,7 @@ func (r *RestraintResults) render(out *outputOptions, resp *Response) ([]byte, s
 // restraint godoc
 //
 //	@Summary		Stress and force in a restrained member; thermal buckling; gradient through the depth
-//	@Description	Free strain e = alpha dT; stress = -R E e (tension positive, so a heated restrained member is in compression, negative); force = stress x area. Degree of restraint R from restraint (0 free .. 1 rigid, default 1) or from support_stiffness k, N/m, of a spring at one end with the other end rigid: R = k / (k + E A / L) (needs area and length). Buckling (end_condition with radius_of_gyration, or second_moment and area, and length): the temperature rise at which R E A alpha dT reaches the Euler load pi^2 E I / (K L)^2, K = 1 pinned, 0.5 fixed, 0.7 fixed-pinned, 2 cantilever. A warning when the stress or the Euler stress exceeds the yield strength (yield_strength or the catalogue's), and when there is no strength to check the stress against (none given, none in the catalogue: concrete, masonry, glass). Gradient (delta_t_top, delta_t_bottom, depth): free curvature alpha (dT_top - dT_bottom)/depth, positive for a warmer top (the member hogs); uniform part the mean of the two; with second_moment the end moment E I kappa of a fixed-fixed member, positive when it compresses the top face, and the face stresses stress_top and stress_bottom = stress -/+ E kappa depth / 2 (tension positive); neither with an end_condition that lets the ends turn (pinned, fixed-pinned, cantilever). Demo example: a 168.3 x 7.1 mm steel pipe (A = 3600 mm2, r = 57 mm) held between anchors in a demo plant trench, guided every 6 m, warmed by 40 K.
+//	@Description	Free strain e = alpha dT; stress = -R E e (tension positive, so a heated restrained member is in compression, negative); force = stress x area. Degree of restraint R from restraint (0 free .. 1 rigid, default 1) or from support_stiffness k, N/m, of a spring at one end with the other end rigid: R = k / (k + E A / L) (needs area and length). Buckling (end_condition with radius_of_gyration, or second_moment and area, and length): the temperature rise at which R E A alpha dT reaches the Euler load pi^2 E I / (K L)^2, K = 1 pinned, 0.5 fixed, 0.7 fixed-pinned, 2 cantilever. A warning when the stress or the Euler stress exceeds the yield strength (yield_strength or the catalogue's), when the yield strength is the catalogue's (it names the grade held, for structural-steel S355: give yield_strength for another grade), and when there is no strength to check the stress against (none given, none in the catalogue: concrete, masonry, glass). Gradient (delta_t_top, delta_t_bottom, depth): free curvature alpha (dT_top - dT_bottom)/depth, positive for a warmer top (the member hogs); uniform part the mean of the two; with second_moment the end moment E I kappa of a fixed-fixed member, positive when it compresses the top face, and the face stresses stress_top and stress_bottom = stress -/+ E kappa depth / 2 (tension positive); neither with an end_condition that lets the ends turn (pinned, fixed-pinned, cantilever). Demo example: a 168.3 x 7.1 mm steel pipe (A = 3600 mm2, r = 57 mm) held between anchors in a demo plant trench, guided every 6 m, warmed by 40 K.
 //	@Tags			restraint
 //	@Produce		json,plain,text/csv,application/xml
 //	@Param			alpha				query		string	false	"coefficient, e.g. 12e-6/K; wins over material"
@@ -566,7 +566,7 @@ func (h *Handler) restraint(p *params) (*Response, error) {
 		bok = bok && ok
 	}
 	fy, hasFy := 0.0, false
-	fyFrom := ""
+	fyFrom, fyGrade := "", ""
 	if p.has("yield_strength") {
 		fy, hasFy = p.positive("yield_strength", units.Stress)
 		if hasFy {
@@ -575,6 +575,8 @@ func (h *Handler) restraint(p *params) (*Response, error) {
 		fyFrom = "request"
 	} else if m := peekMaterial(p, "material"); m != nil && m.Yield != nil {
 		fy, hasFy, fyFrom = m.Yield.Value, true, "catalogue "+m.ID
+		grade, _, _ := strings.Cut(m.Yield.Note, ";")
+		fyGrade = m.ID + " (" + grade + ")"
 		p.inputs.addUsed("yield_strength", fy/1e6, "MPa", fyFrom)
 		resp.References = appendNew(resp.References, m.Yield.Citations...)
 	}
@@ -648,6 +650,13 @@ func (h *Handler) restraint(p *params) (*Response, error) {
 	if hasFy {
 		if d := r * e * co.AlphaMean; d != 0 {
 			res.YieldDeltaT = si(fy / math.Abs(d))
+		}
+		if fyFrom != "request" {
+			// The catalogue holds one grade's minimum (structural-steel is
+			// S355, EN 1993-1-1 Table 3.1); S235 yields at two thirds of it.
+			res.warnStress(resp, func(f func(float64) string) string {
+				return "yield_strength " + f(fy) + " is the catalogue's for " + fyGrade + ": a member of a lower grade, another temper or a thicker section may yield at less, and yield_delta_t and the yield checks are then unconservative; give yield_strength for the member"
+			})
 		}
 		if s := maxAbs(checked); s > fy {
 			res.warnStress(resp, func(f func(float64) string) string {

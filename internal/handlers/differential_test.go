@@ -399,3 +399,40 @@ func TestRestraintGradientFaceStresses(t *testing.T) {
 		t.Errorf("stress_top given without second_moment: %+v", d.Results)
 	}
 }
+
+// TestRestraintCatalogueYield: the catalogue holds one grade's yield
+// strength, so using it is named in a warning. structural-steel is S355
+// (EN 1993-1-1 Table 3.1, from memory: fy 355 N/mm2 for S355, 235 for
+// S235, t <= 40 mm); with E = 210 GPa and alpha = 12e-6/K (clause 3.2.6,
+// E read, alpha from memory) a fully restrained member yields at
+// dT = fy / (E alpha) (sigma = E alpha dT, Gere and Timoshenko, thermal
+// stress of a restrained bar): 140.87 K for S355, 93.25 K for S235.
+func TestRestraintCatalogueYield(t *testing.T) {
+	r := newTestHandler(t).Router()
+	const named = "is the catalogue's for structural-steel (grade S355"
+	for _, tc := range []struct {
+		name, query string
+		warned      bool
+		yieldDT     float64 // K
+	}{
+		{"catalogue S355", q("material", "structural-steel", "delta_t", "40 K"), true, 355e6 / (210e9 * 12e-6)},
+		{"given S235", q("material", "structural-steel", "delta_t", "40 K", "yield_strength", "235 MPa"), false, 235e6 / (210e9 * 12e-6)},
+		{"no material", q("alpha", "12e-6/K", "modulus", "210 GPa", "delta_t", "40 K", "yield_strength", "355 MPa"), false, 355e6 / (210e9 * 12e-6)},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			d := decode(t, do(t, r, "GET", "/v1/restraint?"+tc.query, "", ""))
+			if got := anyContains(d.Warnings, named); got != tc.warned {
+				t.Errorf("warning naming the catalogue's grade: %v, want %v; warnings %q", got, tc.warned, d.Warnings)
+			}
+			if got := d.Results["yield_delta_t"].Value; math.Abs(got-tc.yieldDT) > 1e-6 {
+				t.Errorf("yield_delta_t = %v K, want %v", got, tc.yieldDT)
+			}
+		})
+	}
+	// With units=us the warning quotes psi: 355 MPa / 6894.757 Pa/psi
+	// (NIST SP 811, B.8) = 51,488 psi, to four digits 51490.
+	d := decode(t, do(t, r, "GET", "/v1/restraint?"+q("material", "structural-steel", "delta_t", "40 K", "units", "us"), "", ""))
+	if !anyContains(d.Warnings, "yield_strength 51490 psi "+named) {
+		t.Errorf("units=us: warnings %q, want the yield strength in psi", d.Warnings)
+	}
+}
