@@ -651,16 +651,16 @@ func (h *Handler) restraint(p *params) (*Response, error) {
 		if d := r * e * co.AlphaMean; d != 0 {
 			res.YieldDeltaT = si(fy / math.Abs(d))
 		}
+		if s := maxAbs(checked); s > fy {
+			res.warnStress(resp, func(f func(float64) string) string {
+				return "the restrained stress " + f(s) + " exceeds the yield strength " + f(fy) + " (" + fyFrom + "): the member yields, the elastic stress and force are upper bounds, and an Euler buckling temperature overestimates the real one"
+			})
+		}
 		if fyFrom != "request" {
 			// The catalogue holds one grade's minimum (structural-steel is
 			// S355, EN 1993-1-1 Table 3.1); S235 yields at two thirds of it.
 			res.warnStress(resp, func(f func(float64) string) string {
 				return "yield_strength " + f(fy) + " is the catalogue's for " + fyGrade + ": a member of a lower grade, another temper or a thicker section may yield at less, and yield_delta_t and the yield checks are then unconservative; give yield_strength for the member"
-			})
-		}
-		if s := maxAbs(checked); s > fy {
-			res.warnStress(resp, func(f func(float64) string) string {
-				return "the restrained stress " + f(s) + " exceeds the yield strength " + f(fy) + " (" + fyFrom + "): the member yields, the elastic stress and force are upper bounds, and an Euler buckling temperature overestimates the real one"
 			})
 		}
 	} else if maxAbs(checked) != 0 {

@@ -2,6 +2,7 @@ package handlers
 
 import (
 	"math"
+	"slices"
 	"strings"
 	"testing"
 )
@@ -434,5 +435,13 @@ func TestRestraintCatalogueYield(t *testing.T) {
 	d := decode(t, do(t, r, "GET", "/v1/restraint?"+q("material", "structural-steel", "delta_t", "40 K", "units", "us"), "", ""))
 	if !anyContains(d.Warnings, "yield_strength 51490 psi "+named) {
 		t.Errorf("units=us: warnings %q, want the yield strength in psi", d.Warnings)
+	}
+	// Heated 200 K the member yields (210e9 x 12e-6 x 200 = 504 MPa > 355):
+	// that warning comes before the note on the grade.
+	d = decode(t, do(t, r, "GET", "/v1/restraint?"+q("material", "structural-steel", "delta_t", "200 K"), "", ""))
+	exceeds := slices.IndexFunc(d.Warnings, func(w string) bool { return strings.Contains(w, "exceeds the yield strength 355 MPa") })
+	grade := slices.IndexFunc(d.Warnings, func(w string) bool { return strings.Contains(w, named) })
+	if exceeds < 0 || grade < 0 || exceeds > grade {
+		t.Errorf("200 K: warnings %q; want the stress over the yield strength, then the grade", d.Warnings)
 	}
 }
