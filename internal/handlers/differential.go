@@ -412,7 +412,7 @@ func (r *RestraintResults) render(out *outputOptions, resp *Response) ([]byte, s
 // restraint godoc
 //
 //	@Summary		Stress and force in a restrained member; thermal buckling; gradient through the depth
-//	@Description	Free strain e = alpha dT; stress = -R E e (tension positive, so a heated restrained member is in compression, negative); force = stress x area. Degree of restraint R from restraint (0 free .. 1 rigid, default 1) or from support_stiffness k, N/m, of a spring at one end with the other end rigid: R = k / (k + E A / L) (needs area and length). Buckling (end_condition with radius_of_gyration, or second_moment and area, and length): the temperature rise at which R E A alpha dT reaches the Euler load pi^2 E I / (K L)^2, K = 1 pinned, 0.5 fixed, 0.7 fixed-pinned, 2 cantilever. A warning when the stress or the Euler stress exceeds the yield strength (yield_strength or the catalogue's), when the yield strength is the catalogue's (it names the grade held, for structural-steel S355: give yield_strength for another grade), and when there is no strength to check the stress against (none given, none in the catalogue: concrete, masonry, glass). Gradient (delta_t_top, delta_t_bottom, depth): free curvature alpha (dT_top - dT_bottom)/depth, positive for a warmer top (the member hogs); uniform part the mean of the two; with second_moment the end moment E I kappa of a fixed-fixed member, positive when it compresses the top face, and the face stresses stress_top and stress_bottom = stress -/+ E kappa depth / 2 (tension positive); neither with an end_condition that lets the ends turn (pinned, fixed-pinned, cantilever). Demo example: a 168.3 x 7.1 mm steel pipe (A = 3600 mm2, r = 57 mm) held between anchors in a demo plant trench, guided every 6 m, warmed by 40 K.
+//	@Description	Free strain e = alpha dT; stress = -R E e (tension positive, so a heated restrained member is in compression, negative); force = stress x area. Degree of restraint R from restraint (0 free .. 1 rigid, default 1) or from support_stiffness k, N/m, of a spring at one end with the other end rigid: R = k / (k + E A / L) (needs area and length). Buckling (end_condition with radius_of_gyration, or second_moment and area, and length): the temperature rise at which R E A alpha dT reaches the Euler load pi^2 E I / (K L)^2, K = 1 pinned, 0.5 fixed, 0.7 fixed-pinned, 2 cantilever (negative, a fall, for a negative alpha such as carbon fibre's along its fibres; a given negative alpha warns, as a likely sign slip). A warning when the stress or the Euler stress exceeds the yield strength (yield_strength or the catalogue's), when the yield strength is the catalogue's (it names the grade held, for structural-steel S355: give yield_strength for another grade), and when there is no strength to check the stress against (none given, none in the catalogue: concrete, masonry, glass). Gradient (delta_t_top, delta_t_bottom, depth): free curvature alpha (dT_top - dT_bottom)/depth, positive for a warmer top (the member hogs); uniform part the mean of the two; with second_moment the end moment E I kappa of a fixed-fixed member, positive when it compresses the top face, and the face stresses stress_top and stress_bottom = stress -/+ E kappa depth / 2 (tension positive); neither with an end_condition that lets the ends turn (pinned, fixed-pinned, cantilever). Demo example: a 168.3 x 7.1 mm steel pipe (A = 3600 mm2, r = 57 mm) held between anchors in a demo plant trench, guided every 6 m, warmed by 40 K.
 //	@Tags			restraint
 //	@Produce		json,plain,text/csv,application/xml
 //	@Param			alpha				query		string	false	"coefficient, e.g. 12e-6/K; wins over material"
@@ -580,6 +580,18 @@ func (h *Handler) restraint(p *params) (*Response, error) {
 		p.inputs.addUsed("yield_strength", fy/1e6, "MPa", fyFrom)
 		resp.References = appendNew(resp.References, m.Yield.Citations...)
 	}
+	if buckling && bok && eok && lok && radius > 0 && kFactor > 0 {
+		// A slenderness whose square overflows has an Euler stress of 0:
+		// no member is that slender, so a unit is wrong. (An infinite one,
+		// of a strut too short, is the not-finite result refused later.)
+		if calc.EulerStress(e, radius, kFactor, length) == 0 {
+			name := "radius_of_gyration"
+			if !p.has(name) {
+				name = "second_moment"
+			}
+			p.unprocessable(name, "with length gives a slenderness K L / r of "+formatRounded(kFactor*length/radius)+", beyond any member: check the units")
+		}
+	}
 	if err := p.done(); err != nil || !(cok && eok && aok && lok && rok && bok) {
 		if err == nil {
 			err = newError(errUnprocessable, "the inputs cannot be computed")
@@ -697,16 +709,26 @@ func (h *Handler) restraint(p *params) (*Response, error) {
 		method = append(method, "buckling: dT_cr = pi^2 r^2 / (R alpha (K L)^2) where R E A alpha dT reaches the Euler load pi^2 E I / (K L)^2, K = "+units.FormatNumber(kFactor)+" (theoretical effective-length factor)")
 		resp.References = append(resp.References, refEuler)
 		resp.Cautions = append(resp.Cautions, "Euler buckling assumes a perfectly straight elastic strut; imperfections and yielding lower the critical temperature rise: check the member with the column curves of the governing code.")
-		if math.IsInf(dtcr, 0) || dtcr <= 0 {
+		if math.IsInf(dtcr, 0) {
 			resp.Warnings = append(resp.Warnings, "with no restraint (R = 0) or no expansion, heating puts no force in the member: it cannot buckle thermally, so critical_delta_t is not given")
 		} else {
+			// dT_cr takes the sign of alpha: with a negative coefficient
+			// (carbon fibre along its fibres) a fall in temperature is what
+			// lengthens the member and buckles it.
 			res.CriticalDeltaT = si(dtcr)
+			if co.AlphaMean < 0 {
+				method = append(method, "alpha is negative, so dT_cr is a fall in temperature")
+			}
 			if co.Strain > 0 {
 				u := float64(iv.dT) / dtcr
 				res.BucklingUtilisation = si(u)
 				if u >= 1 {
 					// A concern of these inputs: a warning, which every format carries.
-					resp.Warnings = append(resp.Warnings, "the temperature rise reaches the Euler critical rise (buckling_utilisation "+formatRounded(u)+"): the restrained member buckles (a rail or pipeline can snake out of line); provide expansion joints, loops or lateral restraint")
+					change := "rise"
+					if dtcr < 0 {
+						change = "fall"
+					}
+					resp.Warnings = append(resp.Warnings, "the temperature "+change+" reaches the Euler critical "+change+" (buckling_utilisation "+formatRounded(u)+"): the restrained member buckles (a rail or pipeline can snake out of line); provide expansion joints, loops or lateral restraint")
 				}
 			}
 			if hasFy && calc.EulerStress(e, radius, kFactor, length) > fy {

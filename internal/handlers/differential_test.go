@@ -268,6 +268,8 @@ func TestDifferentialRestraintErrors(t *testing.T) {
 		{"gradient and delta_t", "/v1/restraint?" + q("alpha", "12e-6/K", "modulus", "210 GPa", "delta_t", "5 K", "delta_t_top", "10 K", "delta_t_bottom", "0 K", "depth", "300 mm"), 422, []string{"delta_t"}},
 		{"modulus missing", "/v1/restraint?" + q("alpha", "12e-6/K", "delta_t", "10 K"), 400, []string{"modulus"}},
 		{"liquid", "/v1/restraint?" + q("material", "water", "delta_t", "10 K"), 422, []string{"material"}},
+		// K L / r = 3e303, whose square overflows: an Euler stress of 0.
+		{"slenderness beyond any member", "/v1/restraint?" + q("alpha", "12e-6/K", "modulus", "210 GPa", "delta_t", "40 K", "length", "3 m", "radius_of_gyration", "1e-300 mm", "end_condition", "pinned"), 422, []string{"radius_of_gyration"}},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
@@ -443,5 +445,39 @@ func TestRestraintCatalogueYield(t *testing.T) {
 	grade := slices.IndexFunc(d.Warnings, func(w string) bool { return strings.Contains(w, named) })
 	if exceeds < 0 || grade < 0 || exceeds > grade {
 		t.Errorf("200 K: warnings %q; want the stress over the yield strength, then the grade", d.Warnings)
+	}
+}
+
+// TestRestraintBucklingNegativeAlpha: with a negative coefficient a fall
+// in temperature lengthens the member, so a restrained one cooled enough
+// buckles. dT_cr = pi^2 r^2 / (R alpha (K L)^2) (Euler; any structural
+// stability text, from memory), negative here: pi^2 x 0.005^2 /
+// (-0.38e-6 x 3^2) = -72.15 K for a 3 m pinned strut, r = 5 mm. Cooled by
+// 80 K: utilisation 80 / 72.15 = 1.109, and the Euler stress
+// pi^2 E (r / K L)^2 = 4.11 MPa against E alpha dT = 4.56 MPa.
+func TestRestraintBucklingNegativeAlpha(t *testing.T) {
+	r := newTestHandler(t).Router()
+	strut := []string{"modulus", "150 GPa", "area", "100 mm2", "length", "3 m", "radius_of_gyration", "5 mm", "end_condition", "pinned", "yield_strength", "1000 MPa"}
+	wantCr := math.Pi * math.Pi * 0.005 * 0.005 / (-0.38e-6 * 9)
+	d := decode(t, do(t, r, "GET", "/v1/restraint?"+q(append(strut, "alpha", "-0.38e-6/K", "delta_t", "-80 K")...), "", ""))
+	if got := d.Results["critical_delta_t"].Value; math.Abs(got-wantCr) > 1e-6 {
+		t.Errorf("critical_delta_t = %v K, want %v", got, wantCr)
+	}
+	if got := d.Results["buckling_utilisation"].Value; math.Abs(got-(-80/wantCr)) > 1e-9 {
+		t.Errorf("buckling_utilisation = %v, want %v", got, -80/wantCr)
+	}
+	if !anyContains(d.Warnings, "the temperature fall reaches the Euler critical fall") {
+		t.Errorf("no buckling warning: %q", d.Warnings)
+	}
+	if !anyContains(d.Warnings, "alpha is negative") {
+		t.Errorf("a given negative alpha: no warning to check its sign: %q", d.Warnings)
+	}
+	if anyContains(d.Warnings, "cannot buckle") {
+		t.Errorf("says it cannot buckle: %q", d.Warnings)
+	}
+	// Warmed instead, the member shortens and is in tension: no utilisation.
+	d = decode(t, do(t, r, "GET", "/v1/restraint?"+q(append(strut, "alpha", "-0.38e-6/K", "delta_t", "80 K")...), "", ""))
+	if _, ok := d.Results["buckling_utilisation"]; ok || anyContains(d.Warnings, "buckles") {
+		t.Errorf("a member in tension: results %v, warnings %q", d.Results, d.Warnings)
 	}
 }

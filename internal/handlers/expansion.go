@@ -354,6 +354,10 @@ func (h *Handler) volume(p *params) (*Response, error) {
 			if liquid != nil {
 				resp.Warnings = append(resp.Warnings, "beta was given, so it was used instead of the catalogue data of "+liquid.ID)
 			}
+			if 1+beta*float64(iv.dT) <= 0 {
+				p.unprocessable("beta", "with this temperature change the liquid would shrink to nothing: check beta and the temperatures")
+				break
+			}
 			r, ok = calc.VolumeBeta(vol, beta, iv.dT), vok
 			resp.Method = "dV = beta V0 dT with a constant mean volumetric coefficient beta (request)"
 			res.BetaMean = si(beta)
@@ -407,6 +411,14 @@ func (h *Handler) volume(p *params) (*Response, error) {
 			// As for a solid with a constant only: its range is all the
 			// data there is (and past it a liquid may boil or freeze).
 			p.unprocessable("material", outside[0]+"; set extrapolate=true to extrapolate, or give beta")
+			break
+		}
+		if 1+b.Value*float64(iv.dT) <= 0 {
+			name := "delta_t"
+			if iv.absolute {
+				name = "t_final"
+			}
+			p.unprocessable(name, "with this temperature change "+liquid.ID+" would shrink to nothing at its constant beta: check the temperatures")
 			break
 		}
 		r, ok = calc.VolumeBeta(vol, b.Value, iv.dT), vok

@@ -461,3 +461,25 @@ func TestWaterExtrapolationLimits(t *testing.T) {
 		t.Errorf("water to 200 degC extrapolated: %+v; want a positive expansion with the extrapolation warning", d)
 	}
 }
+
+// TestVolumeShrinksToNothing: V = V0 (1 + beta dT) (ASTM E831's mean
+// coefficient, applied to volume) is zero or negative when beta dT <= -1,
+// a liquid that cannot exist: refused, naming the coefficient or the
+// temperature change, as 1 + alpha dT <= 0 is for a solid.
+func TestVolumeShrinksToNothing(t *testing.T) {
+	r := newTestHandler(t).Router()
+	for _, tc := range []struct{ query, field string }{
+		{q("volume", "1 m3", "beta", "1.1e-3/K", "delta_t", "-1000 K"), "beta"},
+		{q("volume", "1 m3", "beta", "-1e-2/K", "delta_t", "99999 K"), "beta"},
+	} {
+		w := do(t, r, "GET", "/v1/expansion/volume?"+tc.query, "", "")
+		if w.Code != http.StatusUnprocessableEntity || !strings.Contains(w.Body.String(), `"parameter":"`+tc.field+`"`) {
+			t.Errorf("%s: %d %s; want 422 naming %s", tc.query, w.Code, w.Body.String(), tc.field)
+		}
+	}
+	// 1 - 1.1e-3 x 900 = 0.01: still a volume, computed.
+	w := do(t, r, "GET", "/v1/expansion/volume?"+q("volume", "1 m3", "beta", "1.1e-3/K", "delta_t", "-900 K"), "", "")
+	if w.Code != http.StatusOK {
+		t.Errorf("beta dT = -0.99: %d %s", w.Code, w.Body.String())
+	}
+}

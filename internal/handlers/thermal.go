@@ -84,6 +84,11 @@ func (p *params) strain(alphaName, materialName string, iv interval, ivOK bool, 
 			return coefficient{}, false
 		}
 		c := coefficient{Expansion: materials.Expansion{Strain: alpha * float64(iv.dT), AlphaMean: alpha, Kind: "constant"}, from: "request"}
+		if alpha < 0 {
+			// Rare (carbon fibre along its fibres, some glass-ceramics), and
+			// more often a sign slip: every result's sign follows it.
+			c.Warnings = append(c.Warnings, alphaName+" is negative: the material shortens as it warms, as carbon fibre does along its fibres; check the sign")
+		}
 		if hasMat {
 			c.Warnings = append(c.Warnings, alphaName+" was given, so it was used instead of the catalogue coefficient of "+m.ID)
 		}
