@@ -341,6 +341,14 @@ func (in jointInput) checks(s calc.Setting) []Check {
 		if in.tolerance > 0 { // calc.SealantStrains takes it off the width
 			width = "the width less construction_tolerance"
 		}
+		if math.IsInf(ext, 1) { // no width left once the tolerance is taken off
+			none := func(l func(float64) string) string {
+				return "the gap at installation, " + l(s.GapInstallM) + ", is not wider than construction_tolerance " + l(in.tolerance) + ": no width is left for the sealant"
+			}
+			add("sealant_extension", false, none)
+			add("sealant_compression", false, none)
+			return cs
+		}
 		add("sealant_extension", ext <= se*(1+1e-9), func(func(float64) string) string {
 			return "extension at t_min is " + percent(ext) + " of " + width + ", capability " + percent(se)
 		})
@@ -409,7 +417,9 @@ func (h *Handler) gap(p *params) (*Response, error) {
 	if hasWidth {
 		res.RequiredWidth = si(width)
 		ext, comp := calc.SealantStrains(s.ClosingM, s.OpeningHighM, s.GapInstallM, in.tolerance)
-		res.SealantExtension, res.SealantCompression = si(ext), si(comp)
+		if !math.IsInf(ext, 1) { // else the checks fail and say why
+			res.SealantExtension, res.SealantCompression = si(ext), si(comp)
+		}
 	}
 	resp := &Response{Results: res, Cautions: jointCautions}
 	if !p.brief {

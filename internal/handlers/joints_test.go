@@ -733,3 +733,34 @@ func TestJointGapFahrenheitExact(t *testing.T) {
 		}
 	}
 }
+
+// TestJointSealantNoWidthLeft: a gap built no wider than the construction
+// tolerance leaves the sealant no width (W - tolerance <= 0), so both
+// sealant checks fail and say why; the answer is a 200, not a refusal.
+// The required width is W = max(closing / compression, opening /
+// extension) + tolerance (ASTM C1472 approach): 6061 at 23.6e-6/K (ASM
+// Handbook Vol. 2, from memory) over 3 m and 60 K closes
+// 23.6e-6 x 3 x 60 = 4.248 mm, so W = 4.248 / 0.25 + 30 = 46.992 mm.
+func TestJointSealantNoWidthLeft(t *testing.T) {
+	r := newTestHandler(t).Router()
+	const joint = "/v1/joints/gap?length=3%20m&material=aluminium-6061&t_min=20%20degC&t_max=80%20degC&t_install=20%20degC&movement_capability=25&construction_tolerance=30%20mm&gap_install=20%20mm"
+	b := readJointBody(t, do(t, r, "GET", joint, "", ""))
+	if got := b.value(t, "required_width").Value; math.Abs(got-46.992) > 1e-9 {
+		t.Errorf("required_width = %v mm, want 46.992", got)
+	}
+	if v, ok := b.Results["sealant_extension"]; ok {
+		t.Errorf("sealant_extension given for a sealant with no width: %s", v)
+	}
+	cs := b.checks(t)
+	for _, name := range []string{"sealant_extension", "sealant_compression"} {
+		if c := cs[name]; c.Pass || !strings.Contains(c.Detail, "the gap at installation, 20 mm, is not wider than construction_tolerance 30 mm") {
+			t.Errorf("check %s: %+v; want a failure that says why", name, c)
+		}
+		if !anyContains(b.Warnings, "check "+name+" fails") {
+			t.Errorf("no warning of the failing %s: %q", name, b.Warnings)
+		}
+		if w := do(t, r, "GET", joint+"&format=text&result=check_"+name, "", ""); w.Code != http.StatusOK || w.Body.String() != "fail" {
+			t.Errorf("check_%s as text: %d %q, want fail", name, w.Code, w.Body)
+		}
+	}
+}
