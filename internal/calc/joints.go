@@ -19,10 +19,34 @@ func Movement(lengthM, alphaPerK float64, dT units.TemperatureDifference) float6
 // opened as it cools, between the design extremes TMin and TMax. The
 // coefficient may be a band: AlphaHigh is used for closing (the smallest
 // gap when hot) and AlphaLow for opening; without a band both are equal.
+//
+// Strain, when set, is the free strain of the member from TMin to t on a
+// temperature-dependent curve: every movement is then
+// L (Strain(t2) - Strain(t1)), the same dL = alpha L dT with the
+// coefficient's mean over t1..t2 (ASTM E228 / E831), and AlphaLow and
+// AlphaHigh hold its mean over TMin..TMax.
 type Joint struct {
 	LengthM             float64 // expansion length served by the joint
 	AlphaLow, AlphaHigh float64 // per kelvin
 	TMin, TMax          units.Temperature
+	Strain              func(t units.Temperature) float64
+}
+
+// Move is the movement of the length from t1 to t2 with AlphaHigh (or on
+// the curve), positive when it lengthens.
+func (j Joint) Move(t1, t2 units.Temperature) float64 {
+	if j.Strain != nil {
+		return j.LengthM * (j.Strain(t2) - j.Strain(t1))
+	}
+	return Movement(j.LengthM, j.AlphaHigh, t2.Sub(t1))
+}
+
+// moveLow is Move with AlphaLow.
+func (j Joint) moveLow(t1, t2 units.Temperature) float64 {
+	if j.Strain != nil {
+		return j.Move(t1, t2)
+	}
+	return Movement(j.LengthM, j.AlphaLow, t2.Sub(t1))
 }
 
 // Validate reports a joint that cannot be computed.
@@ -40,7 +64,7 @@ func (j Joint) Validate() error {
 
 // Range is the movement range alpha_high L (TMax - TMin), the largest the
 // band allows (AASHTO LRFD eq. 3.12.2.3-1).
-func (j Joint) Range() float64 { return Movement(j.LengthM, j.AlphaHigh, j.TMax.Sub(j.TMin)) }
+func (j Joint) Range() float64 { return j.Move(j.TMin, j.TMax) }
 
 // Setting is the state of a joint set at one installation temperature.
 // Gaps are measured across the joint: warming closes it.
@@ -60,9 +84,9 @@ type Setting struct {
 // installation temperature).
 func (j Joint) At(tInstall units.Temperature, gapInstallM float64) Setting {
 	s := Setting{
-		ClosingM:     Movement(j.LengthM, j.AlphaHigh, j.TMax.Sub(tInstall)),
-		OpeningM:     Movement(j.LengthM, j.AlphaLow, tInstall.Sub(j.TMin)),
-		OpeningHighM: Movement(j.LengthM, j.AlphaHigh, tInstall.Sub(j.TMin)),
+		ClosingM:     j.Move(tInstall, j.TMax),
+		OpeningM:     j.moveLow(j.TMin, tInstall),
+		OpeningHighM: j.Move(j.TMin, tInstall),
 		GapInstallM:  gapInstallM,
 	}
 	s.fill()
@@ -72,7 +96,7 @@ func (j Joint) At(tInstall units.Temperature, gapInstallM float64) Setting {
 // ForMinGap returns the setting at tInstall that leaves minGapM at TMax:
 // gap_install = min_gap + closing.
 func (j Joint) ForMinGap(tInstall units.Temperature, minGapM float64) Setting {
-	return j.At(tInstall, minGapM+Movement(j.LengthM, j.AlphaHigh, j.TMax.Sub(tInstall)))
+	return j.At(tInstall, minGapM+j.Move(tInstall, j.TMax))
 }
 
 // Envelope returns the conservative setting when the installation
@@ -80,11 +104,10 @@ func (j Joint) ForMinGap(tInstall units.Temperature, minGapM float64) Setting {
 // opening are each the full range (closing with AlphaHigh, opening with
 // AlphaLow, OpeningHigh with AlphaHigh).
 func (j Joint) Envelope(gapInstallM float64) Setting {
-	dT := j.TMax.Sub(j.TMin)
 	s := Setting{
-		ClosingM:     Movement(j.LengthM, j.AlphaHigh, dT),
-		OpeningM:     Movement(j.LengthM, j.AlphaLow, dT),
-		OpeningHighM: Movement(j.LengthM, j.AlphaHigh, dT),
+		ClosingM:     j.Move(j.TMin, j.TMax),
+		OpeningM:     j.moveLow(j.TMin, j.TMax),
+		OpeningHighM: j.Move(j.TMin, j.TMax),
 		GapInstallM:  gapInstallM,
 	}
 	s.fill()

@@ -764,3 +764,51 @@ func TestJointSealantNoWidthLeft(t *testing.T) {
 		}
 	}
 }
+
+// TestJointSizedOnCurve: a steel joint from 20 to 400 degC leaves the
+// range of the design constant (12e-6/K to 100 degC), and the catalogue's
+// EN 1993-1-2 curve moves more: the joint is sized on the curve.
+// EN 1993-1-2 eq. (3.1a): dl/l = 1.2e-5 T + 0.4e-8 T^2 - 2.416e-4 (T in
+// degC, 20..750 degC; from memory): 0 at 20 degC, 1.6484e-3 at 150,
+// 5.1984e-3 at 400. Over 50 m: 259.92 mm from 20 degC, which a 240 mm gap
+// does not take (the constant gave 228 mm and a pass); set at 150 degC,
+// closing 50 (5.1984e-3 - 1.6484e-3) = 177.5 mm, opening 82.42 mm.
+func TestJointSizedOnCurve(t *testing.T) {
+	r := newTestHandler(t).Router()
+	eps := func(c float64) float64 { return 1.2e-5*c + 0.4e-8*c*c - 2.416e-4 }
+	const steel = "/v1/joints/gap?length=50%20m&material=structural-steel&t_min=20%20degC&t_max=400%20degC&gap_install=240%20mm"
+	b := readJointBody(t, do(t, r, "GET", steel+"&t_install=20%20degC", "", ""))
+	if got, want := b.value(t, "closing").Value, 50*(eps(400)-eps(20))*1000; math.Abs(got-want) > 1e-6 {
+		t.Errorf("closing = %v mm, want %v", got, want)
+	}
+	if c := b.checks(t)["gap_stays_open"]; c.Pass {
+		t.Errorf("gap_stays_open passes: %+v", c)
+	}
+	if !anyContains(b.Warnings, "the joint is sized on the curve") || anyContains(b.Warnings, "extrapolated") {
+		t.Errorf("warnings %q; want the curve named, nothing extrapolated", b.Warnings)
+	}
+	if !strings.Contains(b.Method, "e(t_max) - e(t_install)") {
+		t.Errorf("method %q", b.Method)
+	}
+	b = readJointBody(t, do(t, r, "GET", steel+"&t_install=150%20degC", "", ""))
+	if got, want := b.value(t, "closing").Value, 50*(eps(400)-eps(150))*1000; math.Abs(got-want) > 1e-6 {
+		t.Errorf("set at 150 degC: closing = %v mm, want %v", got, want)
+	}
+	if got, want := b.value(t, "opening").Value, 50*(eps(150)-eps(20))*1000; math.Abs(got-want) > 1e-6 {
+		t.Errorf("set at 150 degC: opening = %v mm, want %v", got, want)
+	}
+	// The setting table follows the same curve: set at 20 degC with 20 mm
+	// left at 400 degC, gap_install = 20 + 259.92 mm.
+	b = readJointBody(t, do(t, r, "GET", "/v1/joints/gap/schedule?length=50%20m&material=structural-steel&t_min=20%20degC&t_max=400%20degC&min_gap=20%20mm&t_install_step=20%20K", "", ""))
+	if rows := scheduleRows(t, b); len(rows) == 0 || math.Abs(rows[0]["gap_install"].Value-(20+50*eps(400)*1000)) > 1e-6 {
+		t.Errorf("first row %v, want gap_install %v mm", rows[0], 20+50*eps(400)*1000)
+	}
+	// Where the curve moves less than the constant (aluminium 6061 from
+	// -20 to 80 degC, 2.309e-3 against 23.6e-6 x 100 = 2.36e-3, see
+	// TestChainedCurves in internal/materials), the constant is kept: 23.6e-6 x 3 m x 60 K
+	// = 4.248 mm of closing from 20 degC.
+	b = readJointBody(t, do(t, r, "GET", "/v1/joints/gap?length=3%20m&material=aluminium-6061&t_min=-20%20degC&t_max=80%20degC&t_install=20%20degC&movement_capability=25", "", ""))
+	if got := b.value(t, "closing").Value; math.Abs(got-4.248) > 1e-9 {
+		t.Errorf("facade: closing = %v mm, want 4.248 on the constant", got)
+	}
+}

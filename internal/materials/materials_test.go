@@ -294,3 +294,50 @@ func TestSuggest(t *testing.T) {
 		}
 	}
 }
+
+// TestCurveStrain: the strain function a joint is sized with follows the
+// curves Linear takes over the whole interval, at every temperature
+// between: zero at the start, Linear's strain at the end and at points
+// between, and continuous across a join (aluminium-6061, NIST fit and
+// EN 1999-1-2 joined at 300 K; see TestChainedCurves), and on one curve
+// (structural-steel, EN 1993-1-2 eq. (3.1a), from memory:
+// 1.2e-5 T + 0.4e-8 T^2 - 2.416e-4, 5.1984e-3 at 400 degC).
+func TestCurveStrain(t *testing.T) {
+	c := load(t)
+	for _, tc := range []struct {
+		id     string
+		lo, hi float64 // degC
+		end    float64 // strain at hi, 0: Linear's only
+	}{
+		{"aluminium-6061", -20, 80, 0},
+		{"structural-steel", 20, 400, 1.2e-5*400 + 0.4e-8*400*400 - 2.416e-4},
+	} {
+		m, _ := c.Get(tc.id)
+		lo, hi := units.Celsius(tc.lo), units.Celsius(tc.hi)
+		e, at, ok := m.CurveStrain(lo, hi)
+		whole, err := m.Linear(lo, hi, CurveFit, false)
+		if !ok || err != nil || e.Strain != whole.Strain || e.Kind != whole.Kind {
+			t.Fatalf("%s: CurveStrain %+v %v, Linear %+v %v", tc.id, e, ok, whole, err)
+		}
+		if tc.end != 0 && math.Abs(e.Strain-tc.end) > 1e-12 {
+			t.Errorf("%s: strain %v, want %v", tc.id, e.Strain, tc.end)
+		}
+		if at(lo) != 0 || math.Abs(at(hi)-e.Strain) > 1e-15 {
+			t.Errorf("%s: at(lo) = %v, at(hi) = %v, want 0 and %v", tc.id, at(lo), at(hi), e.Strain)
+		}
+		prev := 0.0
+		for x := tc.lo + 1; x <= tc.hi; x++ {
+			s := at(units.Celsius(x))
+			// Under 1 K the strain moves by alpha, some 1e-5: a jump at a
+			// join would be far more.
+			if d := s - prev; !(d > 0 && d < 3e-5) {
+				t.Errorf("%s: strain from %v to %v degC moves %v", tc.id, x-1, x, d)
+			}
+			prev = s
+		}
+	}
+	concrete, _ := c.Get("concrete")
+	if _, _, ok := concrete.CurveStrain(units.Celsius(-20), units.Celsius(40)); ok {
+		t.Error("concrete has no curve, want ok false")
+	}
+}

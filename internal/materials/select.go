@@ -61,7 +61,7 @@ func (m *Material) Linear(t1, t2 units.Temperature, model Model, extrapolate boo
 		return Expansion{}, fmt.Errorf("%s is a liquid: it has a volumetric coefficient, not a linear one", m.ID)
 	}
 	lo, hi := min(t1, t2), max(t1, t2)
-	constantInRange := !m.Alpha.HasRange || (within(lo, m.Alpha.TMin, m.Alpha.TMax) && within(hi, m.Alpha.TMin, m.Alpha.TMax))
+	constantInRange := m.ConstantHolds(t1, t2)
 	outside := func() Expansion {
 		e := m.constant(t2.Sub(t1))
 		e.Warnings = append(e.Warnings, fmt.Sprintf("the interval %s to %s lies outside %s, the range the constant coefficient of %s holds for; the movement is extrapolated",
@@ -129,6 +129,40 @@ func (m *Material) Linear(t1, t2 units.Temperature, model Model, extrapolate boo
 	return e, nil
 }
 
+// ConstantHolds reports whether t1 and t2 lie within the range of the
+// solid m's constant coefficient (one with no range holds everywhere).
+func (m *Material) ConstantHolds(t1, t2 units.Temperature) bool {
+	a := m.Alpha
+	return a != nil && (!a.HasRange || (within(t1, a.TMin, a.TMax) && within(t2, a.TMin, a.TMax)))
+}
+
+// CurveStrain returns the strain of the solid m from lo up to hi on its
+// curves, as Linear with CurveFit takes it (one curve, or two joined),
+// and, for a caller that needs it at many temperatures between, the
+// strain from lo to any t in lo..hi on the same curve or curves; ok is
+// false when the curves do not hold lo..hi.
+func (m *Material) CurveStrain(lo, hi units.Temperature) (e Expansion, at func(units.Temperature) float64, ok bool) {
+	if m.Alpha == nil || !(lo <= hi) {
+		return Expansion{}, nil, false
+	}
+	for i := range m.Curves {
+		if c := &m.Curves[i]; calc.InRange(c, lo) && calc.InRange(c, hi) {
+			return m.curve(*c, lo, hi), func(t units.Temperature) float64 { return calc.IntervalStrain(c, lo, t) }, true
+		}
+	}
+	a, b, tj, ok := m.chainCurves(lo, hi)
+	if !ok {
+		return Expansion{}, nil, false
+	}
+	e, _ = m.chain(lo, hi)
+	return e, func(t units.Temperature) float64 {
+		if t <= tj {
+			return calc.IntervalStrain(a, lo, t)
+		}
+		return (1+calc.IntervalStrain(a, lo, tj))*(1+calc.IntervalStrain(b, tj, t)) - 1
+	}, true
+}
+
 // LinearDelta returns the strain of the solid m over the temperature
 // difference dT by its constant coefficient; absolute temperatures are
 // unknown, so no range can be checked.
@@ -161,24 +195,8 @@ func wider(c *Coefficient, dT units.TemperatureDifference, what, id string) []st
 // heating, and its inverse when cooling.
 func (m *Material) chain(t1, t2 units.Temperature) (Expansion, bool) {
 	lo, hi := min(t1, t2), max(t1, t2)
-	var a, b *Curve
-	for i := range m.Curves {
-		if calc.InRange(m.Curves[i], lo) {
-			a = &m.Curves[i]
-			break
-		}
-	}
-	if a == nil {
-		return Expansion{}, false
-	}
-	_, tj := a.Range()
-	for i := range m.Curves {
-		if c := &m.Curves[i]; c != a && calc.InRange(c, hi) && calc.InRange(c, tj) {
-			b = c
-			break
-		}
-	}
-	if b == nil {
+	a, b, tj, ok := m.chainCurves(lo, hi)
+	if !ok {
 		return Expansion{}, false
 	}
 	ratio := (1 + calc.IntervalStrain(a, lo, tj)) * (1 + calc.IntervalStrain(b, tj, hi))
@@ -188,6 +206,27 @@ func (m *Material) chain(t1, t2 units.Temperature) (Expansion, bool) {
 	}
 	e.AlphaMean = e.Strain / float64(t2.Sub(t1))
 	return e, true
+}
+
+// chainCurves picks the two curves chain joins from lo to hi, and the
+// temperature tj where they are joined.
+func (m *Material) chainCurves(lo, hi units.Temperature) (a, b *Curve, tj units.Temperature, ok bool) {
+	for i := range m.Curves {
+		if calc.InRange(m.Curves[i], lo) {
+			a = &m.Curves[i]
+			break
+		}
+	}
+	if a == nil {
+		return nil, nil, 0, false
+	}
+	_, tj = a.Range()
+	for i := range m.Curves {
+		if c := &m.Curves[i]; c != a && calc.InRange(c, hi) && calc.InRange(c, tj) {
+			return a, c, tj, true
+		}
+	}
+	return nil, nil, 0, false
 }
 
 // joinSources is the source of data taken from both a and b: every
