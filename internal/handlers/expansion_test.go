@@ -483,3 +483,24 @@ func TestVolumeShrinksToNothing(t *testing.T) {
 		t.Errorf("beta dT = -0.99: %d %s", w.Code, w.Body.String())
 	}
 }
+
+// TestVolumeBandHighEnd: a catalogue liquid whose beta is well below the
+// top of its band warns, with how much more the volume changes there:
+// ethylene glycol 5.7e-4/K in 5.7..6.4e-4/K (the catalogue's, from memory
+// of the CRC Handbook), 6.4 / 5.7 - 1 = 12.28 %; dV = beta V0 dT =
+// 5.7e-4 x 1 m3 x 30 K = 17.1 L. Ethanol's band (1.09..1.12e-3/K about
+// 1.1e-3) is within 5 % and does not warn.
+func TestVolumeBandHighEnd(t *testing.T) {
+	r := newTestHandler(t).Router()
+	d := decode(t, do(t, r, "GET", "/v1/expansion/volume?"+q("volume", "1 m3", "material", "ethylene-glycol", "t_initial", "10 degC", "t_final", "40 degC"), "", ""))
+	if got := d.Results["delta_volume"].Value; math.Abs(got-17.1) > 1e-9 {
+		t.Errorf("delta_volume = %v L, want 17.1", got)
+	}
+	if !anyContains(d.Warnings, "at the high end the volume changes 12.28 % more") {
+		t.Errorf("ethylene glycol: warnings %q", d.Warnings)
+	}
+	d = decode(t, do(t, r, "GET", "/v1/expansion/volume?"+q("volume", "1 m3", "material", "ethanol", "t_initial", "10 degC", "t_final", "40 degC"), "", ""))
+	if anyContains(d.Warnings, "high end") {
+		t.Errorf("ethanol: warnings %q", d.Warnings)
+	}
+}

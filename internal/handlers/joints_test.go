@@ -812,3 +812,34 @@ func TestJointSizedOnCurve(t *testing.T) {
 		t.Errorf("facade: closing = %v mm, want 4.248 on the constant", got)
 	}
 }
+
+// TestJointFailsOnBand: a joint checked with a catalogue material's design
+// value that fails within the material's band says so. Concrete: 10e-6/K,
+// band 6..13e-6/K (EN 1991-1-5 Table C.1 and the catalogue's band, from
+// memory). 60 m set at 12 degC closes to 50 degC by
+// 10e-6 x 60 x 38 = 22.8 mm at the design value, 13e-6 x 60 x 38 =
+// 29.64 mm at the band's top (dL = alpha L dT, AASHTO LRFD eq.
+// 3.12.2.3-1): a 28 mm gap stays open at the first and closes at the
+// second; a 40 mm gap holds at both.
+func TestJointFailsOnBand(t *testing.T) {
+	r := newTestHandler(t).Router()
+	const slab = "/v1/joints/gap?length=60%20m&material=concrete&t_min=-25%20degC&t_max=50%20degC&t_install=12%20degC"
+	const warned = "check gap_stays_open passes with the design coefficient of concrete (10e-6/K) but fails within the catalogue's band for it (6 to 13e-6/K)"
+	for _, tc := range []struct {
+		query string
+		want  bool
+	}{
+		{"&gap_install=28%20mm", true},
+		{"&gap_install=40%20mm", false},
+		{"&gap_install=28%20mm&bounds=true", false}, // the band asked for: the check itself fails
+		{"&gap_install=28%20mm&alpha=10e-6/K", false},
+	} {
+		b := readJointBody(t, do(t, r, "GET", slab+tc.query, "", ""))
+		if got := anyContains(b.Warnings, warned); got != tc.want {
+			t.Errorf("%s: warned %v, want %v: %q", tc.query, got, tc.want, b.Warnings)
+		}
+		if got, want := b.value(t, "gap_at_t_max").Value, 28-22.8; tc.want && math.Abs(got-want) > 1e-9 {
+			t.Errorf("%s: gap_at_t_max %v mm, want %v at the design value", tc.query, got, want)
+		}
+	}
+}
