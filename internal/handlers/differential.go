@@ -412,7 +412,7 @@ func (r *RestraintResults) render(out *outputOptions, resp *Response) ([]byte, s
 // restraint godoc
 //
 //	@Summary		Stress and force in a restrained member; thermal buckling; gradient through the depth
-//	@Description	Free strain e = alpha dT; stress = -R E e (tension positive, so a heated restrained member is in compression, negative); force = stress x area. Degree of restraint R from restraint (0 free .. 1 rigid, default 1) or from support_stiffness k, N/m, of a spring at one end with the other end rigid: R = k / (k + E A / L) (needs area and length). Buckling (end_condition with radius_of_gyration, or second_moment and area, and length): the temperature rise at which R E A alpha dT reaches the Euler load pi^2 E I / (K L)^2, K = 1 pinned, 0.5 fixed, 0.7 fixed-pinned, 2 cantilever (negative, a fall, for a negative alpha such as carbon fibre's along its fibres; a given negative alpha warns, as a likely sign slip). A warning when the stress or the Euler stress exceeds the yield strength (yield_strength or the catalogue's), when the yield strength is the catalogue's (it names the grade held, for structural-steel S355: give yield_strength for another grade), and when there is no strength to check the stress against (none given, none in the catalogue: concrete, masonry, glass). Gradient (delta_t_top, delta_t_bottom, depth): free curvature alpha (dT_top - dT_bottom)/depth, positive for a warmer top (the member hogs); uniform part the mean of the two; with second_moment the end moment E I kappa of a fixed-fixed member, positive when it compresses the top face, and the face stresses stress_top and stress_bottom = stress -/+ E kappa depth / 2 (tension positive); neither with an end_condition that lets the ends turn (pinned, fixed-pinned, cantilever). Demo example: a 168.3 x 7.1 mm steel pipe (A = 3600 mm2, r = 57 mm) held between anchors in a demo plant trench, guided every 6 m, warmed by 40 K.
+//	@Description	Free strain e = alpha dT; stress = -R E e (tension positive, so a heated restrained member is in compression, negative); force = stress x area. Degree of restraint R from restraint (0 free .. 1 rigid, default 1) or from support_stiffness k, N/m, of a spring at one end with the other end rigid: R = k / (k + E A / L) (needs area and length). Buckling (end_condition with radius_of_gyration, or second_moment and area, and length): the temperature rise at which R E A alpha dT reaches the Euler load pi^2 E I / (K L)^2, K = 1 pinned, 0.5 fixed, 0.7 fixed-pinned, 2 cantilever (negative, a fall, for a negative alpha such as carbon fibre's along its fibres; a given negative alpha warns, as a likely sign slip). A warning when the stress or the Euler stress exceeds the yield strength (yield_strength or the catalogue's), when the yield strength is the catalogue's (it names the grade held, for structural-steel S355: give yield_strength for another grade), and when there is no strength to check the stress against (none given, none in the catalogue: concrete, masonry, glass). Gradient (delta_t_top, delta_t_bottom, depth): free curvature alpha (dT_top - dT_bottom)/depth, positive for a warmer top (the member hogs); uniform part the mean of the two; with second_moment the end moment E I kappa of a fixed-fixed member, positive when it compresses the top face, and the face stresses stress_top and stress_bottom = stress -/+ E kappa depth / 2 (tension positive); neither with an end_condition that lets the ends turn (pinned, fixed-pinned, cantilever); with axial compression, a warning gives the tension the cool face reaches with less axial restraint (the bending alone, at restraint 0). Demo example: a 168.3 x 7.1 mm steel pipe (A = 3600 mm2, r = 57 mm) held between anchors in a demo plant trench, guided every 6 m, warmed by 40 K.
 //	@Tags			restraint
 //	@Produce		json,plain,text/csv,application/xml
 //	@Param			alpha				query		string	false	"coefficient, e.g. 12e-6/K; wins over material"
@@ -646,6 +646,17 @@ func (h *Handler) restraint(p *params) (*Response, error) {
 		top, bottom = st.StressPa-b, st.StressPa+b
 		res.StressTop, res.StressBottom = si(top), si(bottom)
 		checked = append(checked, top, bottom)
+		// Axial compression takes from a face's bending tension; with less
+		// axial restraint than assumed (rarely known) that face's tension
+		// grows to the bending stress alone, at R = 0.
+		if face, tension := "bottom", b; st.StressPa < 0 && math.Abs(b) > 0 {
+			if b < 0 {
+				face, tension = "top", -b
+			}
+			res.warnStress(resp, func(f func(float64) string) string {
+				return "the axial compression (restraint " + formatRounded(r) + ") lowers the " + face + " face's tension from the held gradient: with less axial restraint that face's stress rises to " + f(tension) + " in tension (at restraint 0, the bending alone); check the face against cracking over the range of restraint the supports can give"
+			})
+		}
 	}
 	if hasArea {
 		res.Force = si(st.StressPa * area)

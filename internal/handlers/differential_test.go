@@ -481,3 +481,31 @@ func TestRestraintBucklingNegativeAlpha(t *testing.T) {
 		t.Errorf("a member in tension: results %v, warnings %q", d.Results, d.Warnings)
 	}
 }
+
+// TestRestraintGradientLessRestraint: a held gradient bends the faces by
+// -/+ E kappa h/2 (M c / I; Timoshenko and Goodier, thermal stresses in
+// beams), and axial compression takes from the cool face's tension. The
+// README's roof slab (concrete, E 33 GPa, alpha 10e-6/K, both from memory
+// of EN 1992-1-1): kappa = 10e-6 x 16 K / 0.25 m = 6.4e-4 /m, bending
+// 33e9 x 6.4e-4 x 0.125 = 2.64 MPa. At R = 0.6 the soffit is at
+// -1.98 + 2.64 = 0.66 MPa; with less restraint it rises to 2.64 MPa, which
+// the warning gives. At R = 0 there is no axial compression to warn of.
+func TestRestraintGradientLessRestraint(t *testing.T) {
+	r := newTestHandler(t).Router()
+	slab := []string{"material", "concrete", "delta_t_top", "18 K", "delta_t_bottom", "2 K", "depth", "250 mm", "second_moment", "1.3e-3 m4"}
+	const warned = "lowers the bottom face's tension from the held gradient: with less axial restraint that face's stress rises to 2.64 MPa in tension"
+	for _, tc := range []struct {
+		restraint string
+		want      bool
+	}{{"0.6", true}, {"1", true}, {"0", false}} {
+		d := decode(t, do(t, r, "GET", "/v1/restraint?"+q(append(slab, "restraint", tc.restraint)...), "", ""))
+		if got := anyContains(d.Warnings, warned); got != tc.want {
+			t.Errorf("restraint %s: warned %v, want %v: %q", tc.restraint, got, tc.want, d.Warnings)
+		}
+	}
+	// In psi with units=us: 2.64e6 / 6894.757 (NIST SP 811) = 382.9 psi.
+	d := decode(t, do(t, r, "GET", "/v1/restraint?"+q(append(slab, "restraint", "0.6", "units", "us")...), "", ""))
+	if !anyContains(d.Warnings, "rises to 382.9 psi in tension") {
+		t.Errorf("units=us: %q", d.Warnings)
+	}
+}
