@@ -20,11 +20,12 @@ func Movement(lengthM, alphaPerK float64, dT units.TemperatureDifference) float6
 // coefficient may be a band: AlphaHigh is used for closing (the smallest
 // gap when hot) and AlphaLow for opening; without a band both are equal.
 //
-// Strain, when set, is the free strain of the member from TMin to t on a
-// temperature-dependent curve: every movement is then
-// L (Strain(t2) - Strain(t1)), the same dL = alpha L dT with the
-// coefficient's mean over t1..t2 (ASTM E228 / E831), and AlphaLow and
-// AlphaHigh hold its mean over TMin..TMax.
+// Strain, when set, is the free strain of the member from TMin to t on
+// temperature-dependent data: every movement is then the larger of
+// L (Strain(t2) - Strain(t1)), dL = alpha L dT with the data's mean
+// coefficient over t1..t2 (ASTM E228 / E831), and the movement with the
+// constant coefficient, so that neither source of data is relied on where
+// the other moves more.
 type Joint struct {
 	LengthM             float64 // expansion length served by the joint
 	AlphaLow, AlphaHigh float64 // per kelvin
@@ -32,21 +33,21 @@ type Joint struct {
 	Strain              func(t units.Temperature) float64
 }
 
-// Move is the movement of the length from t1 to t2 with AlphaHigh (or on
-// the curve), positive when it lengthens.
-func (j Joint) Move(t1, t2 units.Temperature) float64 {
-	if j.Strain != nil {
-		return j.LengthM * (j.Strain(t2) - j.Strain(t1))
-	}
-	return Movement(j.LengthM, j.AlphaHigh, t2.Sub(t1))
-}
+// Move is the movement of the length from t1 to t2 with AlphaHigh (or
+// on Strain, where that moves more), positive when it lengthens.
+func (j Joint) Move(t1, t2 units.Temperature) float64 { return j.move(j.AlphaHigh, t1, t2) }
 
 // moveLow is Move with AlphaLow.
-func (j Joint) moveLow(t1, t2 units.Temperature) float64 {
+func (j Joint) moveLow(t1, t2 units.Temperature) float64 { return j.move(j.AlphaLow, t1, t2) }
+
+func (j Joint) move(alpha float64, t1, t2 units.Temperature) float64 {
+	m := Movement(j.LengthM, alpha, t2.Sub(t1))
 	if j.Strain != nil {
-		return j.Move(t1, t2)
+		if c := j.LengthM * (j.Strain(t2) - j.Strain(t1)); math.Abs(c) > math.Abs(m) {
+			return c
+		}
 	}
-	return Movement(j.LengthM, j.AlphaLow, t2.Sub(t1))
+	return m
 }
 
 // Validate reports a joint that cannot be computed.
@@ -155,10 +156,12 @@ func SealantWidth(closingM, openingM float64, s Sealant, toleranceM float64) flo
 // SealantStrains returns the extension and compression of a sealant in a
 // joint built widthM wide, as fractions of the width, after the
 // construction tolerance is taken off the width (the joint may be built
-// that much narrower). A width at or below the tolerance gives +Inf.
+// that much narrower). A width at or below the tolerance gives +Inf, as
+// does one above it by no more than rounding (a billionth of the width:
+// a tolerance in inches that just misses the gap in mm).
 func SealantStrains(closingM, openingM, widthM, toleranceM float64) (extension, compression float64) {
 	w := widthM - toleranceM
-	if !(w > 0) {
+	if !(w > 1e-9*math.Abs(widthM)) {
 		return math.Inf(1), math.Inf(1)
 	}
 	return math.Max(openingM, 0) / w, math.Max(closingM, 0) / w

@@ -575,8 +575,10 @@ func (h *Handler) restraint(p *params) (*Response, error) {
 		fyFrom = "request"
 	} else if m := peekMaterial(p, "material"); m != nil && m.Yield != nil {
 		fy, hasFy, fyFrom = m.Yield.Value, true, "catalogue "+m.ID
-		grade, _, _ := strings.Cut(m.Yield.Note, ";")
-		fyGrade = m.ID + " (" + grade + ")"
+		fyGrade = m.ID
+		if grade, _, _ := strings.Cut(m.Yield.Note, ";"); grade != "" {
+			fyGrade += " (" + grade + ")"
+		}
 		p.inputs.addUsed("yield_strength", fy/1e6, "MPa", fyFrom)
 		resp.References = appendNew(resp.References, m.Yield.Citations...)
 	}

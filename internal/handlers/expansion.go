@@ -240,6 +240,21 @@ func (h *Handler) area(p *params) (*Response, error) {
 		}
 		ex, ey, cok = ax*float64(iv.dT), ay*float64(iv.dT), ok1 && ok2 && ivOK
 		co = coefficient{Expansion: materials.Expansion{Kind: "constant"}, from: "request"}
+		// As p.strain does for alpha.
+		for _, a := range []struct {
+			name  string
+			alpha float64
+			ok    bool
+		}{{"alpha_x", ax, ok1}, {"alpha_y", ay, ok2}} {
+			switch {
+			case !a.ok || !ivOK:
+			case 1+a.alpha*float64(iv.dT) <= 0:
+				p.unprocessable(a.name, "with this temperature change the material would shrink to nothing: check "+a.name+" and the temperatures")
+				cok = false
+			case a.alpha < 0:
+				co.Warnings = append(co.Warnings, a.name+" is negative: the material shortens that way as it warms, as carbon fibre does along its fibres; check the sign")
+			}
+		}
 	} else {
 		co, cok = p.strain("alpha", "material", iv, ivOK, model, extra)
 		ex, ey = co.Strain, co.Strain
@@ -295,7 +310,7 @@ type VolumeResults struct {
 // volume godoc
 //
 //	@Summary		Thermal expansion of a volume: a solid, a liquid, a liquid in a vessel
-//	@Description	A solid by alpha: V (1 + alpha dT)^3 exactly, 3 alpha V dT beside it. A liquid by beta: dV = beta V dT (refused where 1 + beta dT <= 0; a catalogue liquid whose beta lies more than 5 % below the top of its band warns, with how much more the volume changes there). Water by Kell's (1975) density equation, 0..150 degC: V2 = V1 rho1/rho2 (needs t_initial and t_final). With a vessel (vessel_alpha or vessel_material), its capacity (vessel_volume, default the liquid volume: brim full) grows as (1 + e)^3; net_overflow = liquid final volume - vessel final capacity (positive: spills). Demo example: a 2.5 m3 steel heat-exchanger shell filled with water from 10 degC to 80 degC.
+//	@Description	A solid by alpha: V (1 + alpha dT)^3 exactly, 3 alpha V dT beside it. A liquid by beta: dV = beta V dT (refused where 1 + beta dT <= 0; a catalogue liquid whose band's top is more than 5 % above its beta warns, with how much more the volume changes there). Water by Kell's (1975) density equation, 0..150 degC: V2 = V1 rho1/rho2 (needs t_initial and t_final). With a vessel (vessel_alpha or vessel_material), its capacity (vessel_volume, default the liquid volume: brim full) grows as (1 + e)^3; net_overflow = liquid final volume - vessel final capacity (positive: spills). Demo example: a 2.5 m3 steel heat-exchanger shell filled with water from 10 degC to 80 degC.
 //	@Tags			expansion
 //	@Produce		json,plain,text/csv,application/xml
 //	@Param			volume			query		string	true	"volume at the initial temperature, e.g. 2.5 m3 or 400 L"
@@ -424,12 +439,16 @@ func (h *Handler) volume(p *params) (*Response, error) {
 		r, ok = calc.VolumeBeta(vol, b.Value, iv.dT), vok
 		res.BetaMean = si(b.Value)
 		if b.HasBand && b.High > 1.05*b.Value && iv.dT != 0 {
-			// A vessel's expansion volume is sized on the change: the
-			// band's high end is the safe side. Under 5 % more is within
-			// what the data tell apart (common practice, no published
-			// source).
+			// A vessel's expansion volume (or its low level, cooling) is
+			// sized on the change: the band's high end is the safe side.
+			// Under 5 % more is within what the data tell apart (common
+			// practice, no published source).
+			size := "size an expansion volume"
+			if iv.dT < 0 {
+				size = "check the low level"
+			}
 			resp.Warnings = append(resp.Warnings, "the catalogue's beta of "+liquid.ID+", "+units.FormatNumber(b.Value)+"/K, lies below the high end of its band ("+
-				units.FormatNumber(b.Low)+" to "+units.FormatNumber(b.High)+"/K): at the high end the volume changes "+formatRounded((b.High/b.Value-1)*100)+" % more; size an expansion volume on the project's value (give beta)")
+				units.FormatNumber(b.Low)+" to "+units.FormatNumber(b.High)+"/K): at the high end the volume changes "+formatRounded((b.High/b.Value-1)*100)+" % more; "+size+" on the project's value (give beta)")
 		}
 		p.inputs.addUsed("beta", b.Value, "1/K", "material "+liquid.ID)
 		if !p.brief {

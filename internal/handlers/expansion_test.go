@@ -503,4 +503,30 @@ func TestVolumeBandHighEnd(t *testing.T) {
 	if anyContains(d.Warnings, "high end") {
 		t.Errorf("ethanol: warnings %q", d.Warnings)
 	}
+	// Cooled, the advice is the low level, not an expansion volume.
+	d = decode(t, do(t, r, "GET", "/v1/expansion/volume?"+q("volume", "1 m3", "material", "ethylene-glycol", "t_initial", "40 degC", "t_final", "10 degC"), "", ""))
+	if !anyContains(d.Warnings, "12.28 % more; check the low level") {
+		t.Errorf("ethylene glycol cooled: warnings %q", d.Warnings)
+	}
+}
+
+// TestAreaOrthotropicSigns: alpha_x and alpha_y are read as alpha is: a
+// change with 1 + alpha dT <= 0 is refused (the side would shrink to
+// nothing: L = L0 (1 + alpha dT), ASTM E831's mean coefficient), and a
+// negative one warns as a likely sign slip. Carbon fibre along its fibres
+// is about -0.4e-6/K (the catalogue's cfrp, from memory): 1 m x 1 m warmed
+// 50 K shortens by 0.4e-6 x 50 = 20 um that way.
+func TestAreaOrthotropicSigns(t *testing.T) {
+	r := newTestHandler(t).Router()
+	w := do(t, r, "GET", "/v1/expansion/area?"+q("length", "1 m", "width", "1 m", "alpha_x", "-9e-3/K", "alpha_y", "-9e-3/K", "delta_t", "200 K"), "", "")
+	if w.Code != http.StatusUnprocessableEntity || !strings.Contains(w.Body.String(), `"parameter":"alpha_x"`) || !strings.Contains(w.Body.String(), `"parameter":"alpha_y"`) {
+		t.Errorf("shrinking to nothing: %d %s", w.Code, w.Body)
+	}
+	d := decode(t, do(t, r, "GET", "/v1/expansion/area?"+q("length", "1 m", "width", "1 m", "alpha_x", "-0.4e-6/K", "alpha_y", "30e-6/K", "delta_t", "50 K"), "", ""))
+	if got := d.Results["final_length"].Value; math.Abs(got-(1-20e-6)) > 1e-12 {
+		t.Errorf("final_length = %v m, want %v", got, 1-20e-6)
+	}
+	if !anyContains(d.Warnings, "alpha_x is negative") || anyContains(d.Warnings, "alpha_y is negative") {
+		t.Errorf("warnings %q", d.Warnings)
+	}
 }

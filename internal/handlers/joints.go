@@ -3,6 +3,7 @@ package handlers
 import (
 	"math"
 	"reflect"
+	"slices"
 	"strconv"
 
 	"github.com/thermalmovement/service/internal/calc"
@@ -149,7 +150,8 @@ type jointInput struct {
 	bounds     bool
 	co         coefficient
 	band       *materials.Material
-	curve      func(units.Temperature) float64 // the strain from t_min on the catalogue's curve, when the joint is sized on it
+	curve      func(units.Temperature) float64 // the strain from t_min on the catalogue's temperature-dependent data, where the constant's range is left
+	curveKind  string                          // their kind, for the method
 }
 
 // readJoint reads the parameters every joint calculation shares.
@@ -167,28 +169,25 @@ func (p *params) readJoint() (jointInput, bool) {
 		tok = false
 	}
 	iv := interval{dT: tMax.Sub(tMin), t1: tMin, t2: tMax, absolute: true}
-	// A joint is sized with the material's design constant; where t_min..
-	// t_max leaves the constant's range and the catalogue's curve moves
-	// more over it (steel above 100 degC), on the curve: the larger
-	// movement of the two data the catalogue holds.
-	model, constant := materials.Constant, 0.0
-	if m := peekMaterial(p, "material"); m != nil && tok && !p.has("alpha") && m.Alpha != nil && !m.ConstantHolds(tMin, tMax) {
-		if e, at, ok := m.CurveStrain(tMin, tMax); ok && e.Strain > m.Alpha.Value*float64(iv.dT) {
-			model, constant, in.curve = materials.CurveFit, m.Alpha.Value, at
+	co, cok := p.strain("alpha", "material", iv, tok, materials.Constant, false)
+	// A joint is sized with the material's design constant. Where t_min..
+	// t_max leaves the constant's range and the catalogue holds
+	// temperature-dependent data over it (steel above 100 degC), each
+	// movement is the larger of the constant's and the data's, so that
+	// neither is relied on where the other moves more.
+	if m := peekMaterial(p, "material"); cok && co.from != "request" && m != nil && !m.ConstantHolds(tMin, tMax) {
+		if e, at, ok := m.CurveStrain(tMin, tMax); ok {
+			in.curve = at
+			co.Warnings = []string{"the interval " + units.CelsiusText(tMin) + " to " + units.CelsiusText(tMax) + " lies outside " + units.CelsiusText(m.Alpha.TMin) + " to " + units.CelsiusText(m.Alpha.TMax) +
+				", the range the constant coefficient of " + m.ID + " holds for: each movement is the larger of the constant's and that of its " + e.Kind + " data (mean " +
+				formatRounded(e.AlphaMean*1e6) + "e-6/K over the interval, against the constant " + formatRounded(m.Alpha.Value*1e6) + "e-6/K)"}
+			co.Source.Citations = appendNew(slices.Clone(co.Source.Citations), e.Source.Citations...)
+			in.curveKind = e.Kind
 		}
-	}
-	co, cok := p.strain("alpha", "material", iv, tok, model, false)
-	if in.curve != nil && cok {
-		m := peekMaterial(p, "material")
-		co.Warnings = append(co.Warnings, "the interval "+units.CelsiusText(tMin)+" to "+units.CelsiusText(tMax)+" lies outside "+units.CelsiusText(m.Alpha.TMin)+" to "+units.CelsiusText(m.Alpha.TMax)+
-			", the range the constant coefficient of "+m.ID+" holds for, and its "+co.Kind+" data move more over it (alpha_mean "+formatRounded(co.AlphaMean*1e6)+"e-6/K against the constant "+formatRounded(constant*1e6)+"e-6/K): the joint is sized on the curve")
 	}
 	in.co = co
 	in.bounds = p.flag("bounds")
-	if in.bounds && cok && in.curve != nil {
-		// The band is the constant's, which does not hold here.
-		in.co.Warnings = append(in.co.Warnings, "bounds: the catalogue's band is of the constant coefficient, whose range the interval leaves; the curve is used for closing and opening alike")
-	} else if in.bounds && cok {
+	if in.bounds && cok {
 		switch {
 		case co.from == "request":
 			p.unprocessable("bounds", "bounds uses the coefficient band of a catalogue material; alpha was given, which has no band: give material instead")
@@ -362,6 +361,9 @@ func (in jointInput) checks(s calc.Setting) []Check {
 		}
 		if math.IsInf(ext, 1) { // no width left once the tolerance is taken off
 			none := func(l func(float64) string) string {
+				if in.tolerance == 0 {
+					return "the gap at installation, " + l(s.GapInstallM) + ", is not above zero: no width is left for the sealant"
+				}
 				return "the gap at installation, " + l(s.GapInstallM) + ", is not wider than construction_tolerance " + l(in.tolerance) + ": no width is left for the sealant"
 			}
 			add("sealant_extension", false, none)
@@ -381,7 +383,7 @@ func (in jointInput) checks(s calc.Setting) []Check {
 // gap godoc
 //
 //	@Summary		Movement joint: gaps at installation and at the design extremes, sealant width, checks
-//	@Description	closing = alpha L (t_max - t_install), opening = alpha L (t_install - t_min) (AASHTO LRFD eq. 3.12.2.3-1 split at the installation temperature); gap_at_t_max = gap_install - closing, gap_at_t_min = gap_install + opening. Give gap_install (as built), or min_gap (the smallest gap allowed at t_max: gap_install = min_gap + closing), or a sealant capability (gap_install = required_width). Sealant width W = max(closing / compression, opening / extension) + construction_tolerance (ASTM C1472 approach); a bare movement_capability is per cent (25 = 25 %). Without t_install closing and opening are each the full range (conservative, with a warning). bounds=true uses the catalogue band: the high coefficient for closing, the low one for opening, and reports the opening with the high one too (opening_high, gap_at_t_min_high), which the max_gap and sealant extension checks use. A catalogue material is taken at its design constant; where t_min..t_max leaves the constant's range and the material's temperature-dependent curve moves more over it (steel above 100 degC), the joint is sized on the curve, closing = L (e(t_max) - e(t_install)) and opening = L (e(t_install) - e(t_min)) with e the free strain from t_min, with a warning. A check that passes with a catalogue material's design value but fails within its coefficient band (without bounds=true) adds a warning. A failing check is a result (HTTP 200). Demo example: a 60 m steel footbridge deck between -25 degC and 50 degC, set at 15 degC with 20 mm left at the hottest.
+//	@Description	closing = alpha L (t_max - t_install), opening = alpha L (t_install - t_min) (AASHTO LRFD eq. 3.12.2.3-1 split at the installation temperature); gap_at_t_max = gap_install - closing, gap_at_t_min = gap_install + opening. Give gap_install (as built), or min_gap (the smallest gap allowed at t_max: gap_install = min_gap + closing), or a sealant capability (gap_install = required_width). Sealant width W = max(closing / compression, opening / extension) + construction_tolerance (ASTM C1472 approach); a bare movement_capability is per cent (25 = 25 %). Without t_install closing and opening are each the full range (conservative, with a warning). bounds=true uses the catalogue band: the high coefficient for closing, the low one for opening, and reports the opening with the high one too (opening_high, gap_at_t_min_high), which the max_gap and sealant extension checks use. A catalogue material is taken at its design constant; where t_min..t_max leaves the constant's range and the catalogue holds temperature-dependent data over it (steel above 100 degC), each movement is the larger of the constant's and the data's, L (e(t_max) - e(t_install)) for closing and L (e(t_install) - e(t_min)) for opening with e the free strain from t_min, with a warning. A check that passes with a catalogue material's design value but fails within its coefficient band (without bounds=true) adds a warning. A failing check is a result (HTTP 200). Demo example: a 60 m steel footbridge deck between -25 degC and 50 degC, set at 15 degC with 20 mm left at the hottest.
 //	@Tags			joints
 //	@Produce		json,plain,text/csv,application/xml
 //	@Param			length					query		string	true	"expansion length served by the joint, e.g. 60 m"
@@ -446,7 +448,7 @@ func (h *Handler) gap(p *params) (*Response, error) {
 	}
 	h.citeJoint(p, resp, in)
 	resp.Warnings = append(resp.Warnings, failedChecks(res.Checks, "")...)
-	resp.Warnings = append(resp.Warnings, in.failsOnBand(peekMaterial(p, "material"), s, res.Checks)...)
+	resp.Warnings = append(resp.Warnings, in.failsOnBand(peekMaterial(p, "material"), s)...)
 	if !in.hasInstall {
 		resp.Warnings = append(resp.Warnings, "no t_install: the installation may be at either extreme, so closing and opening are each the full movement range and the gaps are the conservative envelope; give t_install for the gaps of a known setting day")
 	}
@@ -457,19 +459,23 @@ func (h *Handler) gap(p *params) (*Response, error) {
 // catalogue material m but fails, for the gap of setting s, at an end of
 // the material's coefficient band (concrete: 10e-6/K in 6..13e-6/K), when
 // the band was not asked for: the joint then rests on the design value.
-func (in jointInput) failsOnBand(m *materials.Material, s calc.Setting, checks []Check) []string {
-	if m == nil || in.band != nil || in.curve != nil || in.co.from == "request" || m.Alpha == nil || !m.Alpha.HasBand {
+func (in jointInput) failsOnBand(m *materials.Material, s calc.Setting) []string {
+	if m == nil || in.band != nil || in.co.from == "request" || m.Alpha == nil || !m.Alpha.HasBand {
 		return nil
 	}
-	b := in
-	b.band, b.hasGap, b.gapInstall = m, true, s.GapInstallM
+	// The gap of s, as built, checked at the design value and in the band
+	// with the same checks (a sized gap_install gains min_gap_kept).
+	d := in
+	d.hasGap, d.gapInstall = true, s.GapInstallM
+	b := d
+	b.band = m
 	b.joint.AlphaLow, b.joint.AlphaHigh = m.Alpha.Low, m.Alpha.High
 	bs := b.joint.Envelope(s.GapInstallM)
 	if in.hasInstall {
 		bs = b.joint.At(in.tInstall, s.GapInstallM)
 	}
 	passed := map[string]bool{}
-	for _, c := range checks {
+	for _, c := range d.checks(s) {
 		passed[c.Name] = c.Pass
 	}
 	var ws []string
@@ -485,7 +491,7 @@ func (in jointInput) failsOnBand(m *materials.Material, s calc.Setting, checks [
 func gapMethod(in jointInput) string {
 	m := "closing = alpha L (t_max - t_install), opening = alpha L (t_install - t_min) (AASHTO LRFD eq. 3.12.2.3-1 split at t_install); gap_at_t_max = gap_install - closing, gap_at_t_min = gap_install + opening"
 	if in.curve != nil {
-		m = "closing = L (e(t_max) - e(t_install)), opening = L (e(t_install) - e(t_min)), e the free strain from t_min (" + in.co.from + "; AASHTO LRFD eq. 3.12.2.3-1 with the mean coefficient of each interval, split at t_install); gap_at_t_max = gap_install - closing, gap_at_t_min = gap_install + opening"
+		m = "closing = alpha L (t_max - t_install) or L (e(t_max) - e(t_install)), opening = alpha L (t_install - t_min) or L (e(t_install) - e(t_min)), whichever is larger, e the free strain from t_min on the catalogue's " + in.curveKind + " data (AASHTO LRFD eq. 3.12.2.3-1 split at t_install, with the data's mean coefficient over each interval); gap_at_t_max = gap_install - closing, gap_at_t_min = gap_install + opening"
 	}
 	switch {
 	case in.hasGap:
@@ -552,7 +558,7 @@ type ScheduleResults struct {
 // schedule godoc
 //
 //	@Summary		Setting table of a movement joint: the gap to set at each installation temperature
-//	@Description	Rows from t_install_from (default t_min) to t_install_to (default t_max) in steps of t_install_step (a temperature interval despite its t_ prefix, default 5 K; "9 degF" is 5 K; delta_t_install_step is the same parameter under a name that follows the delta_t* rule), at most 401 rows. Each row is /v1/joints/gap at that installation temperature: gap_install = min_gap + alpha L (t_max - t_install), or the sealant's required width, or, with gap_install and t_install, the as-built reference gap shifted by alpha L (t_install - t) along the rows (on the curve, as /v1/joints/gap takes it, where the joint is sized on a catalogue curve). In JSON the rows are objects of {value, unit}; format=csv is the table with units in the header; format=svg and format=png draw gap against installation temperature with t_min and t_max marked. Row units follow units= and <row field>_unit (e.g. gap_install_unit=in). Demo example: a 60 m steel footbridge deck between -25 degC and 50 degC, 20 mm left at the hottest.
+//	@Description	Rows from t_install_from (default t_min) to t_install_to (default t_max) in steps of t_install_step (a temperature interval despite its t_ prefix, default 5 K; "9 degF" is 5 K; delta_t_install_step is the same parameter under a name that follows the delta_t* rule), at most 401 rows. Each row is /v1/joints/gap at that installation temperature: gap_install = min_gap + alpha L (t_max - t_install), or the sealant's required width, or, with gap_install and t_install, the as-built reference gap shifted by alpha L (t_install - t) along the rows (where t_min..t_max leaves a catalogue constant's range, each movement the larger of the constant's and the temperature-dependent data's, as /v1/joints/gap takes it). In JSON the rows are objects of {value, unit}; format=csv is the table with units in the header; format=svg and format=png draw gap against installation temperature with t_min and t_max marked. Row units follow units= and <row field>_unit (e.g. gap_install_unit=in). Demo example: a 60 m steel footbridge deck between -25 degC and 50 degC, 20 mm left at the hottest.
 //	@Tags			joints
 //	@Produce		json,plain,text/csv,application/xml,image/svg+xml,image/png
 //	@Param			length					query		string	true	"expansion length served by the joint, e.g. 60 m"
@@ -670,6 +676,9 @@ func (h *Handler) schedule(p *params) (*Response, error) {
 	method := "each row: " + gapMethod(in)
 	if in.hasGap {
 		method += "; the reference gap_install at t_install shifted to each row by alpha L (t_install - t)"
+		if in.curve != nil {
+			method += " or L (e(t_install) - e(t)), whichever is larger"
+		}
 	}
 	resp := &Response{Results: res, Method: method, Cautions: jointCautions}
 	h.citeJoint(p, resp, in)

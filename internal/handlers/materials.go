@@ -11,7 +11,7 @@ import (
 
 // MaterialList is the body of GET /v1/materials.
 type MaterialList struct {
-	Version   string         `json:"version" example:"2026.12.1"`
+	Version   string         `json:"version" example:"2026.12.2"`
 	Materials []MaterialInfo `json:"materials"`
 }
 

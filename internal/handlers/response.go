@@ -34,7 +34,7 @@ func si(v float64) *Value { return &Value{si: v} }
 // catalogue behind a response.
 type Versions struct {
 	Service   string `json:"service" example:"1.0.0"`
-	Materials string `json:"materials" example:"2026.12.1"`
+	Materials string `json:"materials" example:"2026.12.2"`
 }
 
 // Response is the body of every calculation.

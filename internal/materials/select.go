@@ -137,10 +137,14 @@ func (m *Material) ConstantHolds(t1, t2 units.Temperature) bool {
 }
 
 // CurveStrain returns the strain of the solid m from lo up to hi on its
-// curves, as Linear with CurveFit takes it (one curve, or two joined),
-// and, for a caller that needs it at many temperatures between, the
-// strain from lo to any t in lo..hi on the same curve or curves; ok is
-// false when the curves do not hold lo..hi.
+// temperature-dependent data and, for a caller that needs it at many
+// temperatures between, the strain from lo to any t in lo..hi on the same
+// data; ok is false when the data do not hold lo..hi. The data are one
+// curve, or two joined, as Linear with CurveFit takes them; else, where
+// the constant coefficient's range holds lo and reaches up to the start
+// of a curve that holds hi (steel from -25 degC, its EN 1993-1-2 curve
+// from 20 degC), the constant up to that start and the curve above it,
+// lengths multiplied at the join as chain does.
 func (m *Material) CurveStrain(lo, hi units.Temperature) (e Expansion, at func(units.Temperature) float64, ok bool) {
 	if m.Alpha == nil || !(lo <= hi) {
 		return Expansion{}, nil, false
@@ -150,17 +154,35 @@ func (m *Material) CurveStrain(lo, hi units.Temperature) (e Expansion, at func(u
 			return m.curve(*c, lo, hi), func(t units.Temperature) float64 { return calc.IntervalStrain(c, lo, t) }, true
 		}
 	}
-	a, b, tj, ok := m.chainCurves(lo, hi)
-	if !ok {
-		return Expansion{}, nil, false
+	if a, b, tj, ok := m.chainCurves(lo, hi); ok {
+		e, _ = m.chain(lo, hi)
+		return e, func(t units.Temperature) float64 {
+			if t <= tj {
+				return calc.IntervalStrain(a, lo, t)
+			}
+			return (1+calc.IntervalStrain(a, lo, tj))*(1+calc.IntervalStrain(b, tj, t)) - 1
+		}, true
 	}
-	e, _ = m.chain(lo, hi)
-	return e, func(t units.Temperature) float64 {
-		if t <= tj {
-			return calc.IntervalStrain(a, lo, t)
+	for i := range m.Curves {
+		c := &m.Curves[i]
+		tj, _ := c.Range()
+		if !(tj > lo) || !calc.InRange(c, hi) || !m.ConstantHolds(lo, tj) {
+			continue
 		}
-		return (1+calc.IntervalStrain(a, lo, tj))*(1+calc.IntervalStrain(b, tj, t)) - 1
-	}, true
+		alpha := m.Alpha.Value
+		at = func(t units.Temperature) float64 {
+			if t <= tj {
+				return alpha * float64(t.Sub(lo))
+			}
+			return (1+alpha*float64(tj.Sub(lo)))*(1+calc.IntervalStrain(c, tj, t)) - 1
+		}
+		e = Expansion{Strain: at(hi), Kind: "constant and " + c.Kind, Joined: true, Join: tj, Source: joinSources(m.Alpha.Source, c.Source)}
+		if d := float64(hi.Sub(lo)); d != 0 {
+			e.AlphaMean = e.Strain / d
+		}
+		return e, at, true
+	}
+	return Expansion{}, nil, false
 }
 
 // LinearDelta returns the strain of the solid m over the temperature
