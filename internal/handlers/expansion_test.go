@@ -471,6 +471,8 @@ func TestVolumeShrinksToNothing(t *testing.T) {
 	for _, tc := range []struct{ query, field string }{
 		{q("volume", "1 m3", "beta", "1.1e-3/K", "delta_t", "-1000 K"), "beta"},
 		{q("volume", "1 m3", "beta", "-1e-2/K", "delta_t", "99999 K"), "beta"},
+		// A catalogue liquid: 1 - 5.7e-4 x 2000 < 0, named by the change.
+		{q("volume", "1 m3", "material", "ethylene-glycol", "delta_t", "-2000 K"), "delta_t"},
 	} {
 		w := do(t, r, "GET", "/v1/expansion/volume?"+tc.query, "", "")
 		if w.Code != http.StatusUnprocessableEntity || !strings.Contains(w.Body.String(), `"parameter":"`+tc.field+`"`) {
