@@ -762,7 +762,8 @@ func TestJointSealantNoWidthLeft(t *testing.T) {
 		if w := do(t, r, "GET", joint+"&format=text&result=check_"+name, "", ""); w.Code != http.StatusOK || w.Body.String() != "fail" {
 			t.Errorf("check_%s as text: %d %q, want fail", name, w.Code, w.Body)
 		}
-	}	// A setting table row whose shifted gap is not above zero, with no
+	}
+	// A setting table row whose shifted gap is not above zero, with no
 	// tolerance: 12e-6 x 50 m x 190 K = 114 mm off a 100 mm reference gap
 	// (dL = alpha L dT) leaves -14 mm at 210 degC.
 	b = readJointBody(t, do(t, r, "GET", "/v1/joints/gap/schedule?length=50%20m&alpha=12e-6/K&t_min=20%20degC&t_max=400%20degC&t_install_step=190%20K&gap_install=100%20mm&t_install=20%20degC&movement_capability=25", "", ""))
