@@ -21,11 +21,12 @@ func Movement(lengthM, alphaPerK float64, dT units.TemperatureDifference) float6
 // gap when hot) and AlphaLow for opening; without a band both are equal.
 //
 // Strain, when set, is the free strain of the member from TMin to t on
-// temperature-dependent data: every movement is then the larger of
-// L (Strain(t2) - Strain(t1)), dL = alpha L dT with the data's mean
-// coefficient over t1..t2 (ASTM E228 / E831), and the movement with the
-// constant coefficient, so that neither source of data is relied on where
-// the other moves more.
+// temperature-dependent data: every movement is then the larger, in the
+// direction of the temperature change, of L (Strain(t2) - Strain(t1))
+// (dL = alpha L dT with the data's mean coefficient over t1..t2, ASTM
+// E228 / E831) and alpha L dT with the constant (AlphaHigh, or AlphaLow
+// for the low opening), so that neither is relied on where the other
+// moves more.
 type Joint struct {
 	LengthM             float64 // expansion length served by the joint
 	AlphaLow, AlphaHigh float64 // per kelvin
@@ -42,12 +43,16 @@ func (j Joint) moveLow(t1, t2 units.Temperature) float64 { return j.move(j.Alpha
 
 func (j Joint) move(alpha float64, t1, t2 units.Temperature) float64 {
 	m := Movement(j.LengthM, alpha, t2.Sub(t1))
-	if j.Strain != nil {
-		if c := j.LengthM * (j.Strain(t2) - j.Strain(t1)); math.Abs(c) > math.Abs(m) {
-			return c
-		}
+	if j.Strain == nil {
+		return m
 	}
-	return m
+	// A curve may dip (steel's at 750 degC): the larger movement is the
+	// one in the direction the temperature goes, never one against it.
+	c := j.LengthM * (j.Strain(t2) - j.Strain(t1))
+	if t2 >= t1 {
+		return math.Max(c, m)
+	}
+	return math.Min(c, m)
 }
 
 // Validate reports a joint that cannot be computed.

@@ -179,7 +179,7 @@ func (p *params) readJoint() (jointInput, bool) {
 		if e, at, ok := m.CurveStrain(tMin, tMax); ok {
 			in.curve = at
 			co.Warnings = []string{"the interval " + units.CelsiusText(tMin) + " to " + units.CelsiusText(tMax) + " lies outside " + units.CelsiusText(m.Alpha.TMin) + " to " + units.CelsiusText(m.Alpha.TMax) +
-				", the range the constant coefficient of " + m.ID + " holds for: each movement is the larger of the constant's and that of its " + e.Kind + " data (mean " +
+				", the range the constant coefficient of " + m.ID + " holds for: each movement is the larger of the constant's and that of the catalogue's temperature-dependent data (" + e.Kind + "; mean " +
 				formatRounded(e.AlphaMean*1e6) + "e-6/K over the interval, against the constant " + formatRounded(m.Alpha.Value*1e6) + "e-6/K)"}
 			co.Source.Citations = appendNew(slices.Clone(co.Source.Citations), e.Source.Citations...)
 			in.curveKind = e.Kind
@@ -383,7 +383,7 @@ func (in jointInput) checks(s calc.Setting) []Check {
 // gap godoc
 //
 //	@Summary		Movement joint: gaps at installation and at the design extremes, sealant width, checks
-//	@Description	closing = alpha L (t_max - t_install), opening = alpha L (t_install - t_min) (AASHTO LRFD eq. 3.12.2.3-1 split at the installation temperature); gap_at_t_max = gap_install - closing, gap_at_t_min = gap_install + opening. Give gap_install (as built), or min_gap (the smallest gap allowed at t_max: gap_install = min_gap + closing), or a sealant capability (gap_install = required_width). Sealant width W = max(closing / compression, opening / extension) + construction_tolerance (ASTM C1472 approach); a bare movement_capability is per cent (25 = 25 %). Without t_install closing and opening are each the full range (conservative, with a warning). bounds=true uses the catalogue band: the high coefficient for closing, the low one for opening, and reports the opening with the high one too (opening_high, gap_at_t_min_high), which the max_gap and sealant extension checks use. A catalogue material is taken at its design constant; where t_min..t_max leaves the constant's range and the catalogue holds temperature-dependent data over it (steel above 100 degC), each movement is the larger of the constant's and the data's, L (e(t_max) - e(t_install)) for closing and L (e(t_install) - e(t_min)) for opening with e the free strain from t_min, with a warning. A check that passes with a catalogue material's design value but fails within its coefficient band (without bounds=true) adds a warning. A failing check is a result (HTTP 200). Demo example: a 60 m steel footbridge deck between -25 degC and 50 degC, set at 15 degC with 20 mm left at the hottest.
+//	@Description	closing = alpha L (t_max - t_install), opening = alpha L (t_install - t_min) (AASHTO LRFD eq. 3.12.2.3-1 split at the installation temperature); gap_at_t_max = gap_install - closing, gap_at_t_min = gap_install + opening. Give gap_install (as built), or min_gap (the smallest gap allowed at t_max: gap_install = min_gap + closing), or a sealant capability (gap_install = required_width). Sealant width W = max(closing / compression, opening / extension) + construction_tolerance (ASTM C1472 approach); a bare movement_capability is per cent (25 = 25 %). Without t_install closing and opening are each the full range (conservative, with a warning). bounds=true uses the catalogue band: the high coefficient for closing, the low one for opening, and reports the opening with the high one too (opening_high, gap_at_t_min_high), which the max_gap and sealant extension checks use. A catalogue material is taken at its design constant; where t_min..t_max leaves the constant's range and the catalogue holds temperature-dependent data over it (steel above 100 degC), each movement is the larger of the constant's and the data's, L (e(t_max) - e(t_install)) for closing and L (e(t_install) - e(t_min)) for opening with e the free strain from t_min (the constant where the interval reaches beyond the data), with a warning. A check that passes with a catalogue material's design value but fails within its coefficient band (without bounds=true) adds a warning. A failing check is a result (HTTP 200). Demo example: a 60 m steel footbridge deck between -25 degC and 50 degC, set at 15 degC with 20 mm left at the hottest.
 //	@Tags			joints
 //	@Produce		json,plain,text/csv,application/xml
 //	@Param			length					query		string	true	"expansion length served by the joint, e.g. 60 m"
@@ -448,7 +448,7 @@ func (h *Handler) gap(p *params) (*Response, error) {
 	}
 	h.citeJoint(p, resp, in)
 	resp.Warnings = append(resp.Warnings, failedChecks(res.Checks, "")...)
-	resp.Warnings = append(resp.Warnings, in.failsOnBand(peekMaterial(p, "material"), s)...)
+	resp.Warnings = append(resp.Warnings, in.failsOnBand(peekMaterial(p, "material"), s, "")...)
 	if !in.hasInstall {
 		resp.Warnings = append(resp.Warnings, "no t_install: the installation may be at either extreme, so closing and opening are each the full movement range and the gaps are the conservative envelope; give t_install for the gaps of a known setting day")
 	}
@@ -459,7 +459,7 @@ func (h *Handler) gap(p *params) (*Response, error) {
 // catalogue material m but fails, for the gap of setting s, at an end of
 // the material's coefficient band (concrete: 10e-6/K in 6..13e-6/K), when
 // the band was not asked for: the joint then rests on the design value.
-func (in jointInput) failsOnBand(m *materials.Material, s calc.Setting) []string {
+func (in jointInput) failsOnBand(m *materials.Material, s calc.Setting, where string) []string {
 	if m == nil || in.band != nil || in.co.from == "request" || m.Alpha == nil || !m.Alpha.HasBand {
 		return nil
 	}
@@ -479,11 +479,20 @@ func (in jointInput) failsOnBand(m *materials.Material, s calc.Setting) []string
 		passed[c.Name] = c.Pass
 	}
 	var ws []string
+	design := "the design coefficient of " + m.ID + " (" + formatRounded(m.Alpha.Value*1e6) + "e-6/K)"
+	if in.curve != nil {
+		design += " and its temperature-dependent data"
+	}
+	band := "the catalogue's band for it (" + formatRounded(m.Alpha.Low*1e6) + " to " + formatRounded(m.Alpha.High*1e6) + "e-6/K)"
 	for _, c := range b.checks(bs) {
-		if passed[c.Name] && !c.Pass {
-			ws = append(ws, "check "+c.Name+" passes with the design coefficient of "+m.ID+" ("+formatRounded(m.Alpha.Value*1e6)+"e-6/K) but fails within the catalogue's band for it ("+
-				formatRounded(m.Alpha.Low*1e6)+" to "+formatRounded(m.Alpha.High*1e6)+"e-6/K): give the project's coefficient, or bounds=true to size the joint with the band")
+		if !passed[c.Name] || c.Pass {
+			continue
 		}
+		what := "check " + c.Name + " passes with " + design + " but fails within " + band
+		if c.Name == "min_gap_kept" && !in.hasGap { // sized from min_gap: no such check in the answer
+			what = "the gap at t_max keeps min_gap with " + design + " but falls below it within " + band
+		}
+		ws = append(ws, what+where+": give the project's coefficient, or bounds=true to size the joint with the band")
 	}
 	return ws
 }
@@ -654,7 +663,10 @@ func (h *Handler) schedule(p *params) (*Response, error) {
 		res.maxGap = in.maxGap
 	}
 	var perRow [][]Check
+	var bandWarnings []string
 	rowIn := in
+	ref := in.joint.At(in.tInstall, in.gapInstall)
+	mat := peekMaterial(p, "material")
 	for _, t := range ts {
 		if in.hasGap {
 			// The reference gap, shifted along the rows: the joint is the
@@ -662,6 +674,18 @@ func (h *Handler) schedule(p *params) (*Response, error) {
 			rowIn.gapInstall = in.gapInstall - in.joint.Move(in.tInstall, t)
 		}
 		s, width, hasWidth := rowIn.setting(t, true)
+		if in.hasGap && in.curve != nil {
+			// Where constant and data each govern a part, the movements
+			// do not add up along the rows: the joint's extremes are the
+			// worse of the row's and the reference's.
+			s.GapAtTMaxM = min(s.GapAtTMaxM, ref.GapAtTMaxM)
+			s.GapAtTMinM, s.GapAtTMinHigh = max(s.GapAtTMinM, ref.GapAtTMinM), max(s.GapAtTMinHigh, ref.GapAtTMinHigh)
+		}
+		for _, w := range rowIn.failsOnBand(mat, s, " in one or more rows of the table") {
+			if !slices.Contains(bandWarnings, w) {
+				bandWarnings = append(bandWarnings, w)
+			}
+		}
 		row := ScheduleRow{TInstall: si(float64(t)), GapInstall: si(s.GapInstallM), GapAtTMin: si(s.GapAtTMinM), GapAtTMax: si(s.GapAtTMaxM)}
 		if in.band != nil {
 			row.GapAtTMinHigh = si(s.GapAtTMinHigh)
@@ -683,6 +707,7 @@ func (h *Handler) schedule(p *params) (*Response, error) {
 	resp := &Response{Results: res, Method: method, Cautions: jointCautions}
 	h.citeJoint(p, resp, in)
 	resp.Warnings = append(resp.Warnings, failedChecks(res.Checks, " in one or more rows of the table")...)
+	resp.Warnings = append(resp.Warnings, bandWarnings...)
 	return resp, nil
 }
 

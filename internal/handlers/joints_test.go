@@ -799,7 +799,7 @@ func TestJointSizedOnCurve(t *testing.T) {
 	if c := b.checks(t)["gap_stays_open"]; c.Pass {
 		t.Errorf("gap_stays_open passes: %+v", c)
 	}
-	if !anyContains(b.Warnings, "each movement is the larger of the constant's and that of its piecewise-strain data (mean 13.68e-6/K") || anyContains(b.Warnings, "extrapolated") {
+	if !anyContains(b.Warnings, "each movement is the larger of the constant's and that of the catalogue's temperature-dependent data (piecewise-strain; mean 13.68e-6/K") || anyContains(b.Warnings, "extrapolated") {
 		t.Errorf("warnings %q; want the data named, nothing extrapolated", b.Warnings)
 	}
 	if !strings.Contains(b.Method, "whichever is larger") || !anyContains(b.References, "EN 1993-1-2") {
@@ -840,6 +840,34 @@ func TestJointSizedOnCurve(t *testing.T) {
 	near("aluminium-alloy closing with bounds", b.value(t, "closing").Value, 129.6)
 	if _, ok := b.Results["opening_high"]; !ok {
 		t.Error("bounds: no opening_high")
+	}
+	// Where the data hold only part of t_min..t_max, the constant is taken
+	// beyond them, so the closing to t_max does not depend on t_min: 16Mo3's
+	// datasheet mean from 20 to 400 degC is 13.5e-6/K (read), 13.5e-6 x 50
+	// x 380 = 256.5 mm, from t_min 20 degC and (within lengths multiplied,
+	// 0.1 %) from -20 degC.
+	for _, tMin := range []string{"20", "-20"} {
+		b = readJointBody(t, do(t, r, "GET", "/v1/joints/gap?length=50%20m&material=pressure-vessel-steel-16mo3&t_min="+tMin+"%20degC&t_max=400%20degC&t_install=20%20degC&min_gap=10%20mm", "", ""))
+		if got := b.value(t, "closing").Value; got < 256.5-1e-9 || got > 256.5*1.001 {
+			t.Errorf("16Mo3 from t_min %s degC: closing %v mm, want 256.5", tMin, got)
+		}
+	}
+	// EN 1993-1-2's curve steps down onto its 1.1e-2 plateau at 750 degC
+	// (eq. (3.1b), from memory): a warming never closes the joint by a
+	// negative amount; 12e-6 x 50 m x 0.3 K = 0.18 mm governs.
+	b = readJointBody(t, do(t, r, "GET", "/v1/joints/gap?length=50%20m&material=structural-steel&t_min=20%20degC&t_max=750.2%20degC&t_install=749.9%20degC&gap_install=10%20mm", "", ""))
+	near("closing across the plateau's step", b.value(t, "closing").Value, 0.18)
+	// A setting table from a reference gap describes the same joint as
+	// /v1/joints/gap: 304 from -40 to 200 degC, 300 mm at 20 degC, leaves
+	// under 151.6 mm at 200 degC there, so min_gap_kept fails in the table too.
+	const ss304 = "length=50%20m&material=stainless-steel-304&t_min=-40%20degC&t_max=200%20degC&gap_install=300%20mm&t_install=20%20degC&min_gap=151.6%20mm"
+	b = readJointBody(t, do(t, r, "GET", "/v1/joints/gap?"+ss304, "", ""))
+	if c := b.checks(t)["min_gap_kept"]; c.Pass {
+		t.Fatalf("304 joint: min_gap_kept passes: %+v", c)
+	}
+	b = readJointBody(t, do(t, r, "GET", "/v1/joints/gap/schedule?"+ss304+"&t_install_from=-40%20degC&t_install_to=10%20degC&t_install_step=10%20K", "", ""))
+	if c := b.checks(t)["min_gap_kept"]; c.Pass {
+		t.Errorf("304 table: min_gap_kept passes in every row: %+v", c)
 	}
 	// The facade demo (aluminium 6061, -20 to 80 degC): its curves move
 	// less than 23.6e-6/K (ASM Handbook Vol. 2, from memory), so the
@@ -882,7 +910,13 @@ func TestJointFailsOnBand(t *testing.T) {
 	// Sized from min_gap: 5 mm + 10e-6 x 50 x 30 = 20 mm at the design
 	// value, which at 13e-6/K keeps 20 - 19.5 = 0.5 mm, under min_gap.
 	b := readJointBody(t, do(t, r, "GET", "/v1/joints/gap?length=50%20m&material=concrete&t_min=-20%20degC&t_max=40%20degC&t_install=10%20degC&min_gap=5%20mm", "", ""))
-	if !anyContains(b.Warnings, "check min_gap_kept passes with the design coefficient of concrete") {
+	if !anyContains(b.Warnings, "the gap at t_max keeps min_gap with the design coefficient of concrete (10e-6/K) but falls below it within the catalogue's band") {
 		t.Errorf("min_gap only: warnings %q", b.Warnings)
+	}
+	// The setting table warns too: its -20 degC row, sized 5 + 10e-6 x 50 x
+	// 60 = 35 mm, closes to 35 - 13e-6 x 50 x 60 = -4 mm at the band's top.
+	b = readJointBody(t, do(t, r, "GET", "/v1/joints/gap/schedule?length=50%20m&material=concrete&t_min=-20%20degC&t_max=40%20degC&min_gap=5%20mm&t_install_step=20%20K", "", ""))
+	if !anyContains(b.Warnings, "check gap_stays_open passes with the design coefficient of concrete (10e-6/K) but fails within the catalogue's band for it (6 to 13e-6/K) in one or more rows of the table") {
+		t.Errorf("table: warnings %q", b.Warnings)
 	}
 }

@@ -314,6 +314,9 @@ func TestCurveStrain(t *testing.T) {
 		// From -25 degC: the constant 12e-6/K (EN 1993-1-1 3.2.6, from
 		// memory) to the curve's start at 20 degC, lengths multiplied there.
 		{"structural-steel", -25, 400, (1+12e-6*45)*(1+1.2e-5*400+0.4e-8*400*400-2.416e-4) - 1},
+		// 16Mo3: its mean table from 20 degC (13.5e-6/K to 400 degC,
+		// datasheet, read), the constant 11.1e-6/K below 20 degC.
+		{"pressure-vessel-steel-16mo3", -20, 400, (1+11.1e-6*40)*(1+13.5e-6*380) - 1},
 	} {
 		m, _ := c.Get(tc.id)
 		lo, hi := units.Celsius(tc.lo), units.Celsius(tc.hi)

@@ -139,50 +139,61 @@ func (m *Material) ConstantHolds(t1, t2 units.Temperature) bool {
 // CurveStrain returns the strain of the solid m from lo up to hi on its
 // temperature-dependent data and, for a caller that needs it at many
 // temperatures between, the strain from lo to any t in lo..hi on the same
-// data; ok is false when the data do not hold lo..hi. The data are one
-// curve, or two joined, as Linear with CurveFit takes them; else, where
-// the constant coefficient's range holds lo and reaches up to the start
-// of a curve that holds hi (steel from -25 degC, its EN 1993-1-2 curve
-// from 20 degC), the constant up to that start and the curve above it,
-// lengths multiplied at the join as chain does.
+// data; ok is false when no data reach into lo..hi. The data are the
+// widest part of lo..hi that one curve holds, or two joined as chain joins
+// them; where lo..hi reaches beyond it (steel from -25 degC, its
+// EN 1993-1-2 curve starting at 20 degC), the constant coefficient is
+// taken there, lengths multiplied at each end as chain does.
 func (m *Material) CurveStrain(lo, hi units.Temperature) (e Expansion, at func(units.Temperature) float64, ok bool) {
-	if m.Alpha == nil || !(lo <= hi) {
+	if m.Alpha == nil || !(lo < hi) || len(m.Curves) == 0 {
 		return Expansion{}, nil, false
 	}
-	for i := range m.Curves {
-		if c := &m.Curves[i]; calc.InRange(c, lo) && calc.InRange(c, hi) {
-			return m.curve(*c, lo, hi), func(t units.Temperature) float64 { return calc.IntervalStrain(c, lo, t) }, true
-		}
-	}
-	if a, b, tj, ok := m.chainCurves(lo, hi); ok {
-		e, _ = m.chain(lo, hi)
-		return e, func(t units.Temperature) float64 {
-			if t <= tj {
-				return calc.IntervalStrain(a, lo, t)
-			}
-			return (1+calc.IntervalStrain(a, lo, tj))*(1+calc.IntervalStrain(b, tj, t)) - 1
-		}, true
-	}
+	var a, b units.Temperature // the data's part of lo..hi
+	var on func(t units.Temperature) float64
+	var data Expansion
+	dataLo, dataHi := m.Curves[0].Range()
 	for i := range m.Curves {
 		c := &m.Curves[i]
-		tj, _ := c.Range()
-		if !(tj > lo) || !calc.InRange(c, hi) || !m.ConstantHolds(lo, tj) {
-			continue
+		clo, chi := c.Range()
+		dataLo, dataHi = min(dataLo, clo), max(dataHi, chi)
+		if x, y := max(lo, clo), min(hi, chi); y > x && (on == nil || y.Sub(x) > b.Sub(a)) {
+			a, b, data = x, y, m.curve(*c, x, y)
+			on = func(t units.Temperature) float64 { return calc.IntervalStrain(c, x, t) }
 		}
-		alpha := m.Alpha.Value
-		at = func(t units.Temperature) float64 {
-			if t <= tj {
-				return alpha * float64(t.Sub(lo))
-			}
-			return (1+alpha*float64(tj.Sub(lo)))*(1+calc.IntervalStrain(c, tj, t)) - 1
-		}
-		e = Expansion{Strain: at(hi), Kind: "constant and " + c.Kind, Joined: true, Join: tj, Source: joinSources(m.Alpha.Source, c.Source)}
-		if d := float64(hi.Sub(lo)); d != 0 {
-			e.AlphaMean = e.Strain / d
-		}
-		return e, at, true
 	}
-	return Expansion{}, nil, false
+	if x, y := max(lo, dataLo), min(hi, dataHi); y > x && (on == nil || y.Sub(x) > b.Sub(a)) {
+		if ca, cb, tj, ok := m.chainCurves(x, y); ok {
+			a, b = x, y
+			data, _ = m.chain(x, y)
+			on = func(t units.Temperature) float64 {
+				if t <= tj {
+					return calc.IntervalStrain(ca, x, t)
+				}
+				return (1+calc.IntervalStrain(ca, x, tj))*(1+calc.IntervalStrain(cb, tj, t)) - 1
+			}
+		}
+	}
+	if on == nil {
+		return Expansion{}, nil, false
+	}
+	if a == lo && b == hi {
+		return data, on, true
+	}
+	alpha := m.Alpha.Value
+	sa := 1 + alpha*float64(a.Sub(lo))
+	sb := sa * (1 + on(b))
+	at = func(t units.Temperature) float64 {
+		switch {
+		case t <= a:
+			return alpha * float64(t.Sub(lo))
+		case t <= b:
+			return sa*(1+on(t)) - 1
+		}
+		return sb*(1+alpha*float64(t.Sub(b))) - 1
+	}
+	e = Expansion{Strain: at(hi), Kind: data.Kind + " over " + span(a, b) + ", the constant coefficient beyond", Joined: true, Join: a, Source: joinSources(m.Alpha.Source, data.Source)}
+	e.AlphaMean = e.Strain / float64(hi.Sub(lo))
+	return e, at, true
 }
 
 // LinearDelta returns the strain of the solid m over the temperature
