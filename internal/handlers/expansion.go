@@ -241,19 +241,10 @@ func (h *Handler) area(p *params) (*Response, error) {
 		ex, ey, cok = ax*float64(iv.dT), ay*float64(iv.dT), ok1 && ok2 && ivOK
 		co = coefficient{Expansion: materials.Expansion{Kind: "constant"}, from: "request"}
 		// As p.strain does for alpha.
-		for _, a := range []struct {
-			name  string
-			alpha float64
-			ok    bool
-		}{{"alpha_x", ax, ok1}, {"alpha_y", ay, ok2}} {
-			switch {
-			case !a.ok || !ivOK:
-			case 1+a.alpha*float64(iv.dT) <= 0:
-				p.unprocessable(a.name, "with this temperature change the material would shrink to nothing: check "+a.name+" and the temperatures")
-				cok = false
-			case a.alpha < 0:
-				co.Warnings = append(co.Warnings, a.name+" is negative: the material shortens that way as it warms, as carbon fibre does along its fibres; check the sign")
-			}
+		if ivOK && ok1 && ok2 {
+			x, y := p.shrinksToNothing("alpha_x", ax, iv.dT, "the material"), p.shrinksToNothing("alpha_y", ay, iv.dT, "the material")
+			cok = cok && !x && !y
+			co.Warnings = appendNegative(appendNegative(co.Warnings, "alpha_x", ax), "alpha_y", ay)
 		}
 	} else {
 		co, cok = p.strain("alpha", "material", iv, ivOK, model, extra)
@@ -369,8 +360,7 @@ func (h *Handler) volume(p *params) (*Response, error) {
 			if liquid != nil {
 				resp.Warnings = append(resp.Warnings, "beta was given, so it was used instead of the catalogue data of "+liquid.ID)
 			}
-			if 1+beta*float64(iv.dT) <= 0 {
-				p.unprocessable("beta", "with this temperature change the liquid would shrink to nothing: check beta and the temperatures")
+			if p.shrinksToNothing("beta", beta, iv.dT, "the liquid") {
 				break
 			}
 			r, ok = calc.VolumeBeta(vol, beta, iv.dT), vok
@@ -428,12 +418,11 @@ func (h *Handler) volume(p *params) (*Response, error) {
 			p.unprocessable("material", outside[0]+"; set extrapolate=true to extrapolate, or give beta")
 			break
 		}
-		if 1+b.Value*float64(iv.dT) <= 0 {
-			name := "delta_t"
-			if iv.absolute {
-				name = "t_final"
-			}
-			p.unprocessable(name, "with this temperature change "+liquid.ID+" would shrink to nothing at its constant beta: check the temperatures")
+		name := "delta_t"
+		if iv.absolute {
+			name = "t_final"
+		}
+		if p.shrinksToNothing(name, b.Value, iv.dT, liquid.ID+" at its constant beta") {
 			break
 		}
 		r, ok = calc.VolumeBeta(vol, b.Value, iv.dT), vok

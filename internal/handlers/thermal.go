@@ -79,16 +79,11 @@ func (p *params) strain(alphaName, materialName string, iv interval, ivOK bool, 
 		return coefficient{}, false
 	}
 	if hasAlpha {
-		if 1+alpha*float64(iv.dT) <= 0 {
-			p.unprocessable(alphaName, "with this temperature change the material would shrink to nothing: check alpha and the temperatures")
+		if p.shrinksToNothing(alphaName, alpha, iv.dT, "the material") {
 			return coefficient{}, false
 		}
 		c := coefficient{Expansion: materials.Expansion{Strain: alpha * float64(iv.dT), AlphaMean: alpha, Kind: "constant"}, from: "request"}
-		if alpha < 0 {
-			// Rare (carbon fibre along its fibres, some glass-ceramics), and
-			// more often a sign slip: every result's sign follows it.
-			c.Warnings = append(c.Warnings, alphaName+" is negative: the material shortens as it warms, as carbon fibre does along its fibres; check the sign")
-		}
+		c.Warnings = appendNegative(c.Warnings, alphaName, alpha)
 		if hasMat {
 			c.Warnings = append(c.Warnings, alphaName+" was given, so it was used instead of the catalogue coefficient of "+m.ID)
 		}
@@ -130,4 +125,25 @@ func (p *params) strain(alphaName, materialName string, iv interval, ivOK bool, 
 		p.inputs.addUsed(alphaName+"_mean", e.AlphaMean, "1/K", c.from)
 	}
 	return c, true
+}
+
+// shrinksToNothing refuses, naming name, a coefficient with which
+// 1 + coef dT <= 0: what (a length, L = L0 (1 + alpha dT), or a volume)
+// would shrink to nothing.
+func (p *params) shrinksToNothing(name string, coef float64, dT units.TemperatureDifference, what string) bool {
+	if 1+coef*float64(dT) > 0 {
+		return false
+	}
+	p.unprocessable(name, "with this temperature change "+what+" would shrink to nothing: check "+name+" and the temperatures")
+	return true
+}
+
+// appendNegative adds the warning for a negative linear coefficient given
+// as name: rare (carbon fibre along its fibres, some glass-ceramics), and
+// more often a sign slip, since every result's sign follows it.
+func appendNegative(warnings []string, name string, alpha float64) []string {
+	if alpha >= 0 {
+		return warnings
+	}
+	return append(warnings, name+" is negative: the material shortens as it warms, as carbon fibre does along its fibres; check the sign")
 }
