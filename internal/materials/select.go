@@ -165,12 +165,7 @@ func (m *Material) CurveStrain(lo, hi units.Temperature) (e Expansion, at func(u
 		if ca, cb, tj, ok := m.chainCurves(x, y); ok {
 			a, b = x, y
 			data, _ = m.chain(x, y)
-			on = func(t units.Temperature) float64 {
-				if t <= tj {
-					return calc.IntervalStrain(ca, x, t)
-				}
-				return (1+calc.IntervalStrain(ca, x, tj))*(1+calc.IntervalStrain(cb, tj, t)) - 1
-			}
+			on = func(t units.Temperature) float64 { return joinedStrain(ca, cb, tj, x, t) }
 		}
 	}
 	if on == nil {
@@ -232,13 +227,22 @@ func (m *Material) chain(t1, t2 units.Temperature) (Expansion, bool) {
 	if !ok {
 		return Expansion{}, false
 	}
-	ratio := (1 + calc.IntervalStrain(a, lo, tj)) * (1 + calc.IntervalStrain(b, tj, hi))
+	ratio := 1 + joinedStrain(a, b, tj, lo, hi)
 	e := Expansion{Strain: ratio - 1, Kind: a.Kind + " and " + b.Kind, Joined: true, Join: tj, Source: joinSources(a.Source, b.Source)}
 	if t1 > t2 {
 		e.Strain = 1/ratio - 1
 	}
 	e.AlphaMean = e.Strain / float64(t2.Sub(t1))
 	return e, true
+}
+
+// joinedStrain is the strain from lo to t (lo <= t) on curve a up to tj
+// and on b above it, lengths multiplied at tj.
+func joinedStrain(a, b *Curve, tj, lo, t units.Temperature) float64 {
+	if t <= tj {
+		return calc.IntervalStrain(a, lo, t)
+	}
+	return (1+calc.IntervalStrain(a, lo, tj))*(1+calc.IntervalStrain(b, tj, t)) - 1
 }
 
 // chainCurves picks the two curves chain joins from lo to hi, and the
