@@ -241,11 +241,10 @@ func (h *Handler) area(p *params) (*Response, error) {
 		ex, ey, cok = ax*float64(iv.dT), ay*float64(iv.dT), ok1 && ok2 && ivOK
 		co = coefficient{Expansion: materials.Expansion{Kind: "constant"}, from: "request"}
 		// As p.strain does for alpha.
-		if ivOK && ok1 && ok2 {
-			x, y := p.shrinksToNothing("alpha_x", ax, iv.dT, "the material"), p.shrinksToNothing("alpha_y", ay, iv.dT, "the material")
-			cok = cok && !x && !y
-			co.Warnings = appendNegative(appendNegative(co.Warnings, "alpha_x", ax), "alpha_y", ay)
-		}
+		x := ivOK && ok1 && p.shrinksToNothing("alpha_x", ax, iv.dT, "the material")
+		y := ivOK && ok2 && p.shrinksToNothing("alpha_y", ay, iv.dT, "the material")
+		cok = cok && !x && !y
+		co.Warnings = appendNegative(appendNegative(co.Warnings, "alpha_x", ax), "alpha_y", ay)
 	} else {
 		co, cok = p.strain("alpha", "material", iv, ivOK, model, extra)
 		ex, ey = co.Strain, co.Strain
